@@ -1,0 +1,180 @@
+//! Headless runs: a session stepped to the end, with the energy log, summary, checkpoint and
+//! trajectory written to an output folder.
+
+use super::session::Session;
+use crate::io::energy_log::EnergyLog;
+use crate::io::summary::{RunFacts, Summary};
+use crate::io::trajectory;
+use crate::physics::Observables;
+use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
+use std::fs::File;
+use std::io::{BufWriter, IsTerminal, Write};
+use std::path::{Path, PathBuf};
+use std::time::Instant;
+
+/// How a headless run is carried out.
+#[derive(Clone, Debug)]
+pub struct HeadlessOptions {
+    /// Run until this step (default: the setup's `steps`).
+    pub until_step: Option<u64>,
+    pub out: PathBuf,
+    /// Threads in use (for the summary).
+    pub threads: usize,
+    /// No progress bar.
+    pub quiet: bool,
+    /// Replace the files of an earlier run in `out`.
+    pub overwrite: bool,
+}
+
+/// Why a headless run stopped early.
+#[derive(Debug, thiserror::Error)]
+pub enum RunError {
+    /// The inputs cannot be run (exit code 2).
+    #[error("{0}")]
+    BadInput(String),
+    /// The run itself failed (exit code 1).
+    #[error("{0}")]
+    Failed(String),
+}
+
+impl RunError {
+    /// Process exit code: 2 for bad input, 1 for a failed run.
+    pub fn exit_code(&self) -> i32 {
+        match self {
+            RunError::BadInput(_) => 2,
+            RunError::Failed(_) => 1,
+        }
+    }
+}
+
+/// Files a run writes into its output folder.
+pub const OUTPUT_FILES: [&str; 4] = ["energy.csv", "summary.json", "final.checkpoint", "trajectory.xyz"];
+
+/// Checks that `out` can take a run without destroying an earlier one.
+pub fn check_output_dir(out: &Path, overwrite: bool) -> Result<(), RunError> {
+    if out.exists() && !out.is_dir() {
+        return Err(RunError::BadInput(format!("--out: {} exists and is not a folder; choose a folder", out.display())));
+    }
+    if !overwrite {
+        if let Some(f) = OUTPUT_FILES.iter().find(|f| out.join(f).exists()) {
+            return Err(RunError::BadInput(format!(
+                "--out: {} already holds a run ({f}); choose another folder or pass --overwrite",
+                out.display()
+            )));
+        }
+    }
+    Ok(())
+}
+
+/// Runs `session` to the end and writes the outputs. `fresh` is false when continuing from a
+/// checkpoint (the starting sample was already logged by the earlier run).
+pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<Summary, RunError> {
+    let setup = session.setup().clone();
+    let until = opts.until_step.unwrap_or(setup.steps);
+    let start_step = session.simulation().step_count();
+    if until <= start_step {
+        return Err(RunError::BadInput(format!("--steps: {until} is not past the saved step {start_step}; allowed: more than {start_step}")));
+    }
+    check_output_dir(&opts.out, opts.overwrite)?;
+    std::fs::create_dir_all(&opts.out).map_err(|e| RunError::BadInput(format!("--out: cannot create {}: {e}", opts.out.display())))?;
+    let io_err = |what: &str, e: std::io::Error| RunError::Failed(format!("writing {what}: {e}"));
+    let units = session.units();
+    let csv = File::create(opts.out.join("energy.csv")).map_err(|e| io_err("energy.csv", e))?;
+    let mut log = EnergyLog::new(BufWriter::new(csv), units).map_err(|e| io_err("energy.csv", e))?;
+    let mut traj = match setup.trajectory_every {
+        Some(_) => Some(BufWriter::new(File::create(opts.out.join("trajectory.xyz")).map_err(|e| io_err("trajectory.xyz", e))?)),
+        None => None,
+    };
+    let mut samples: Vec<Observables> = Vec::new();
+    if fresh {
+        let o = session.observe();
+        log.write(&o).map_err(|e| io_err("energy.csv", e))?;
+        samples.push(o);
+        if let Some(t) = traj.as_mut() {
+            let sim = session.simulation();
+            trajectory::write_frame(t, sim.system(), &units, sim.step_count(), sim.time()).map_err(|e| io_err("trajectory.xyz", e))?;
+        }
+    }
+    let bar = progress_bar(until - start_step, opts.quiet);
+    let started = Instant::now();
+    let atoms = session.simulation().system().len();
+    let mut failure = None;
+    let mut warnings = Vec::new();
+    while session.simulation().step_count() < until {
+        let out = session.step();
+        if let Some(o) = out.sample {
+            log.write(&o).map_err(|e| io_err("energy.csv", e))?;
+            samples.push(o);
+        }
+        if let Some(alarm) = out.alarm {
+            match alarm {
+                super::protocol::Alarm::NonFinite { step, atoms } => {
+                    failure = Some(format!("non-finite energy at step {step}; atoms involved: {atoms:?}. Lower the timestep (now {:?}) or check the density.", setup.timestep));
+                    break;
+                }
+                other => warnings.push(other.describe()),
+            }
+        }
+        let step = session.simulation().step_count();
+        if let (Some(t), Some(k)) = (traj.as_mut(), setup.trajectory_every) {
+            if step % k == 0 {
+                let sim = session.simulation();
+                trajectory::write_frame(t, sim.system(), &units, step, sim.time()).map_err(|e| io_err("trajectory.xyz", e))?;
+            }
+        }
+        if step % 64 == 0 {
+            bar.set_position(step - start_step);
+        }
+    }
+    bar.finish_and_clear();
+    let wall = started.elapsed().as_secs_f64();
+    log.finish().map_err(|e| io_err("energy.csv", e))?;
+    if let Some(t) = traj.as_mut() {
+        t.flush().map_err(|e| io_err("trajectory.xyz", e))?;
+    }
+    if let Some(f) = failure {
+        return Err(RunError::Failed(f));
+    }
+    for w in &warnings {
+        eprintln!("warning: {w}");
+    }
+    session.checkpoint().save(&opts.out.join("final.checkpoint")).map_err(|e| RunError::Failed(e.to_string()))?;
+    let sim = session.simulation();
+    let summary = Summary::new(
+        &samples,
+        units,
+        RunFacts {
+            title: setup.title.clone(),
+            atoms,
+            steps: sim.step_count(),
+            equilibration_steps: setup.equilibration_steps,
+            density: sim.system().density(),
+            mass_density_g_cm3: units.has_real_units().then(|| mass_density(&session)),
+            neighbour_list_builds: sim.list_builds(),
+            steps_run: sim.step_count() - start_step,
+            wall_seconds: wall,
+            threads: opts.threads,
+        },
+    );
+    std::fs::write(opts.out.join("summary.json"), summary.to_json()).map_err(|e| io_err("summary.json", e))?;
+    Ok(summary)
+}
+
+/// Mass density of the session's box in g/cm³.
+pub fn mass_density(session: &Session) -> f64 {
+    let sys = session.simulation().system();
+    let u = session.units();
+    let mean_mass: f64 = sys.types.iter().map(|&t| sys.masses[t as usize]).sum::<f64>() / sys.len() as f64;
+    sys.density() * mean_mass * u.mass_density_g_cm3()
+}
+
+fn progress_bar(len: u64, quiet: bool) -> ProgressBar {
+    if quiet || !std::io::stderr().is_terminal() {
+        return ProgressBar::hidden();
+    }
+    let bar = ProgressBar::with_draw_target(Some(len), ProgressDrawTarget::stderr());
+    bar.set_style(
+        ProgressStyle::with_template("{bar:40} {pos}/{len} steps  {per_sec}  {eta} left").unwrap_or_else(|_| ProgressStyle::default_bar()),
+    );
+    bar
+}

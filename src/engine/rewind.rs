@@ -1,0 +1,62 @@
+//! The rewind buffer: a few exact snapshots of recent, healthy states.
+
+use crate::physics::SimulationState;
+use std::collections::VecDeque;
+
+/// Snapshots taken every `every` steps, at most `capacity` of them.
+#[derive(Clone, Debug)]
+pub struct RewindBuffer {
+    every: u64,
+    capacity: usize,
+    snapshots: VecDeque<SimulationState>,
+}
+
+/// Memory the buffer may use in all (common-practice budget for a desktop session).
+pub const MEMORY_BUDGET_BYTES: usize = 512 * 1024 * 1024;
+
+impl RewindBuffer {
+    /// A buffer for `atoms` atoms: up to 8 snapshots within [`MEMORY_BUDGET_BYTES`].
+    pub fn new(atoms: usize, every: u64) -> Self {
+        let per = 73 * atoms.max(1) + 256;
+        RewindBuffer { every: every.max(1), capacity: (MEMORY_BUDGET_BYTES / per).clamp(1, 8), snapshots: VecDeque::new() }
+    }
+
+    /// Whether a snapshot is due at `step`.
+    pub fn due(&self, step: u64) -> bool {
+        step % self.every == 0 && self.snapshots.back().is_none_or(|s| s.step != step)
+    }
+
+    /// Stores a snapshot, dropping the oldest beyond capacity.
+    pub fn push(&mut self, state: SimulationState) {
+        if self.snapshots.len() == self.capacity {
+            self.snapshots.pop_front();
+        }
+        self.snapshots.push_back(state);
+    }
+
+    /// The newest snapshot strictly before `step`, dropping every newer one.
+    pub fn rewind_before(&mut self, step: u64) -> Option<SimulationState> {
+        while let Some(s) = self.snapshots.back() {
+            if s.step < step {
+                return Some(s.clone());
+            }
+            self.snapshots.pop_back();
+        }
+        None
+    }
+
+    /// Number of snapshots held.
+    pub fn len(&self) -> usize {
+        self.snapshots.len()
+    }
+
+    /// Whether no snapshot is held.
+    pub fn is_empty(&self) -> bool {
+        self.snapshots.is_empty()
+    }
+
+    /// Forgets every snapshot.
+    pub fn clear(&mut self) {
+        self.snapshots.clear();
+    }
+}

@@ -1,0 +1,326 @@
+//! The engine thread: owns the session, obeys commands, streams samples and frames.
+//!
+//! The window never waits for the simulation: commands and events go over unbounded channels
+//! (so no sample is ever lost) and frames through a one-slot [`FrameMailbox`]. The simulation
+//! never waits for drawing: it fills a frame only when the last one was taken.
+
+use super::frame::{Frame, FrameMailbox};
+use super::protocol::{Alarm, Command, Event, Status};
+use super::rewind::RewindBuffer;
+use super::session::Session;
+use crate::io::checkpoint::Checkpoint;
+use crate::io::setup::{Setup, SetupError};
+use std::sync::mpsc::{self, Receiver, RecvTimeoutError, Sender};
+use std::sync::Arc;
+use std::thread::JoinHandle;
+use std::time::{Duration, Instant};
+
+/// Steps between rewind snapshots (a few seconds of a typical run).
+const SNAPSHOT_EVERY: u64 = 500;
+/// How long one batch of steps may run before commands are read again.
+const BATCH: Duration = Duration::from_millis(15);
+/// How often a status event goes out.
+const STATUS_EVERY: Duration = Duration::from_millis(250);
+
+/// The window's side of the engine: send commands, read events, take frames.
+pub struct EngineHandle {
+    commands: Sender<Command>,
+    events: Receiver<Event>,
+    frames: Arc<FrameMailbox>,
+    thread: Option<JoinHandle<()>>,
+}
+
+impl EngineHandle {
+    /// Validates `setup`, then starts the engine thread paused on it.
+    pub fn spawn(setup: Setup) -> Result<EngineHandle, SetupError> {
+        setup.resolve()?;
+        Self::spawn_with(setup, None)
+    }
+
+    /// Starts the engine; `wake` is called whenever events or a frame are ready (e.g. to
+    /// request a repaint).
+    pub fn spawn_with(setup: Setup, wake: Option<Box<dyn Fn() + Send>>) -> Result<EngineHandle, SetupError> {
+        setup.resolve()?;
+        let (ctx, crx) = mpsc::channel();
+        let (etx, erx) = mpsc::channel();
+        let frames = Arc::new(FrameMailbox::new());
+        let mailbox = frames.clone();
+        let thread = std::thread::Builder::new()
+            .name("noblescope-engine".into())
+            .spawn(move || Engine::new(crx, etx, mailbox, wake).run(setup))
+            .expect("the engine thread starts");
+        Ok(EngineHandle { commands: ctx, events: erx, frames, thread: Some(thread) })
+    }
+
+    /// Sends a command (ignored if the engine has stopped).
+    pub fn send(&self, c: Command) {
+        let _ = self.commands.send(c);
+    }
+
+    /// Every event that has arrived, without waiting.
+    pub fn events(&self) -> impl Iterator<Item = Event> + '_ {
+        self.events.try_iter()
+    }
+
+    /// Waits up to `timeout` for the next event.
+    pub fn next_event(&self, timeout: Duration) -> Option<Event> {
+        self.events.recv_timeout(timeout).ok()
+    }
+
+    /// Swaps the newest frame into `into`; returns whether there was a new one.
+    pub fn take_frame(&self, into: &mut Frame) -> bool {
+        self.frames.take(into)
+    }
+}
+
+impl Drop for EngineHandle {
+    fn drop(&mut self) {
+        let _ = self.commands.send(Command::Shutdown);
+        if let Some(t) = self.thread.take() {
+            let _ = t.join();
+        }
+    }
+}
+
+struct Engine {
+    commands: Receiver<Command>,
+    events: Sender<Event>,
+    frames: Arc<FrameMailbox>,
+    wake: Option<Box<dyn Fn() + Send>>,
+    running: bool,
+    rewind: RewindBuffer,
+    last_alarm: Option<Alarm>,
+    /// Steps and time since the last status, for the rates.
+    rate_steps: u64,
+    rate_since: Instant,
+    last_status: Instant,
+    steps_per_second: f64,
+}
+
+impl Engine {
+    fn new(commands: Receiver<Command>, events: Sender<Event>, frames: Arc<FrameMailbox>, wake: Option<Box<dyn Fn() + Send>>) -> Self {
+        Engine {
+            commands,
+            events,
+            frames,
+            wake,
+            running: false,
+            rewind: RewindBuffer::new(1, SNAPSHOT_EVERY),
+            last_alarm: None,
+            rate_steps: 0,
+            rate_since: Instant::now(),
+            last_status: Instant::now(),
+            steps_per_second: 0.0,
+        }
+    }
+
+    fn emit(&self, e: Event) {
+        let _ = self.events.send(e);
+        if let Some(w) = &self.wake {
+            w();
+        }
+    }
+
+    fn start(&mut self, session: &Session) {
+        self.rewind = RewindBuffer::new(session.simulation().system().len(), SNAPSHOT_EVERY);
+        self.rewind.push(session.simulation().state());
+        self.last_alarm = None;
+        self.emit(Event::Started { setup: Box::new(session.setup().clone()), atoms: session.simulation().system().len() });
+        self.emit(Event::Sample(session.observe()));
+        self.publish_frame(session, true);
+    }
+
+    fn run(mut self, setup: Setup) {
+        let mut session = match Session::new(setup) {
+            Ok(s) => s,
+            Err(e) => {
+                self.emit(Event::Rejected { command: "start".into(), reason: e.to_string() });
+                return;
+            }
+        };
+        self.start(&session);
+        loop {
+            // Read commands: wait while paused, only peek while running.
+            let cmd = if self.running {
+                self.commands.try_recv().ok()
+            } else {
+                match self.commands.recv_timeout(Duration::from_millis(50)) {
+                    Ok(c) => Some(c),
+                    Err(RecvTimeoutError::Timeout) => None,
+                    Err(RecvTimeoutError::Disconnected) => return,
+                }
+            };
+            if let Some(c) = cmd {
+                if !self.handle(c, &mut session) {
+                    return;
+                }
+                continue;
+            }
+            if self.running {
+                let until = Instant::now() + BATCH;
+                while self.running && Instant::now() < until {
+                    self.advance(&mut session);
+                    if self.frames.wants_frame() {
+                        break;
+                    }
+                }
+            }
+            self.publish_frame(&session, false);
+            if self.last_status.elapsed() >= STATUS_EVERY {
+                self.send_status(&session);
+            }
+        }
+    }
+
+    fn advance(&mut self, session: &mut Session) {
+        let out = session.step();
+        self.rate_steps += 1;
+        if let Some(s) = out.sample {
+            self.emit(Event::Sample(s));
+        }
+        if let Some(a) = out.alarm {
+            self.running = false;
+            self.last_alarm = Some(a.clone());
+            self.emit(Event::Alarm(a));
+            self.send_status(session);
+            return;
+        }
+        let step = session.simulation().step_count();
+        if self.rewind.due(step) {
+            self.rewind.push(session.simulation().state());
+        }
+    }
+
+    fn publish_frame(&self, session: &Session, force: bool) {
+        if force || self.frames.wants_frame() {
+            self.frames.publish(|f| f.fill_from(session.simulation()));
+            if let Some(w) = &self.wake {
+                w();
+            }
+        }
+    }
+
+    fn send_status(&mut self, session: &Session) {
+        let dt = self.rate_since.elapsed().as_secs_f64();
+        if dt > 0.2 || !self.running {
+            self.steps_per_second = if self.running && dt > 0.0 { self.rate_steps as f64 / dt } else { self.steps_per_second * self.running as u8 as f64 };
+            self.rate_steps = 0;
+            self.rate_since = Instant::now();
+        }
+        let sim = session.simulation();
+        let atoms = sim.system().len();
+        self.emit(Event::Status(Status {
+            running: self.running,
+            step: sim.step_count(),
+            time: sim.time(),
+            atoms,
+            steps_per_second: self.steps_per_second,
+            atom_steps_per_second: self.steps_per_second * atoms as f64,
+            list_builds: sim.list_builds(),
+            snapshots: self.rewind.len(),
+        }));
+        self.last_status = Instant::now();
+    }
+
+    /// Handles one command; returns false to stop the thread.
+    fn handle(&mut self, c: Command, session: &mut Session) -> bool {
+        let name = format!("{c:?}").split(['(', ' ', '{']).next().unwrap_or("command").to_string();
+        let result: Result<(), String> = match c {
+            Command::Shutdown => return false,
+            Command::Run => {
+                if matches!(self.last_alarm, Some(Alarm::NonFinite { .. })) {
+                    Err("the run blew up; rewind or reset before running again".into())
+                } else {
+                    self.running = true;
+                    self.rate_since = Instant::now();
+                    self.rate_steps = 0;
+                    Ok(())
+                }
+            }
+            Command::Pause => {
+                self.running = false;
+                Ok(())
+            }
+            Command::StepOnce => {
+                self.running = false;
+                if matches!(self.last_alarm, Some(Alarm::NonFinite { .. })) {
+                    Err("the run blew up; rewind or reset before stepping".into())
+                } else {
+                    self.advance(session);
+                    self.publish_frame(session, true);
+                    Ok(())
+                }
+            }
+            Command::Apply(setup) => match Session::new(*setup) {
+                Ok(s) => {
+                    *session = s;
+                    self.running = false;
+                    self.start(session);
+                    Ok(())
+                }
+                Err(e) => Err(e.to_string()),
+            },
+            Command::Reset => match Session::new(session.setup().clone()) {
+                Ok(s) => {
+                    *session = s;
+                    self.running = false;
+                    self.start(session);
+                    Ok(())
+                }
+                Err(e) => Err(e.to_string()),
+            },
+            Command::SetTimestep(dt) => session.set_timestep(dt).map_err(|e| e.to_string()),
+            Command::SetInteraction { cutoff, skin, potential, tail_correction } => {
+                session.set_interaction(cutoff, skin, potential, tail_correction).map_err(|e| e.to_string())
+            }
+            Command::SetThermostat { ensemble, temperature } => session.set_thermostat(ensemble, temperature).map_err(|e| e.to_string()),
+            Command::SaveCheckpoint(path) => match session.checkpoint().save(&path) {
+                Ok(()) => {
+                    self.emit(Event::Saved(path));
+                    Ok(())
+                }
+                Err(e) => Err(e.to_string()),
+            },
+            Command::LoadCheckpoint(path) => match Checkpoint::load(&path).map_err(|e| e.to_string()).and_then(|c| Session::from_checkpoint(c).map_err(|e| e.to_string())) {
+                Ok(s) => {
+                    *session = s;
+                    self.running = false;
+                    self.start(session);
+                    Ok(())
+                }
+                Err(e) => Err(e),
+            },
+            Command::Rewind => {
+                let before = self.last_alarm.as_ref().map(|a| a.step()).unwrap_or(session.simulation().step_count() + 1);
+                match self.rewind.rewind_before(before) {
+                    Some(state) => {
+                        let spec = session.simulation().spec().clone();
+                        match crate::physics::Simulation::from_state(spec, state) {
+                            Ok(sim) => {
+                                *session.simulation_mut() = sim;
+                                self.running = false;
+                                self.last_alarm = None;
+                                self.emit(Event::Rewound { step: session.simulation().step_count() });
+                                self.emit(Event::Sample(session.observe()));
+                                self.publish_frame(session, true);
+                                Ok(())
+                            }
+                            Err(e) => Err(e.to_string()),
+                        }
+                    }
+                    None => Err("no snapshot older than the alarm is left; reset instead".into()),
+                }
+            }
+        };
+        match result {
+            Ok(()) => {
+                if matches!(name.as_str(), "SetTimestep" | "SetInteraction" | "SetThermostat") {
+                    self.emit(Event::SetupChanged(Box::new(session.setup().clone())));
+                }
+            }
+            Err(reason) => self.emit(Event::Rejected { command: name, reason }),
+        }
+        self.send_status(session);
+        true
+    }
+}

@@ -1,0 +1,119 @@
+//! A session: one simulation with its setup, sampling schedule and watchdog. The engine thread
+//! and the headless runner both drive a session, so they step and sample identically.
+
+use super::protocol::Alarm;
+use super::watchdog::Watchdog;
+use crate::io::checkpoint::Checkpoint;
+use crate::io::setup::{Duration, Ensemble, Length, Setup, SetupError, Temperature};
+use crate::physics::{Observables, PotentialMode, Simulation, UnitSystem};
+
+/// One simulation and what it was set up from.
+pub struct Session {
+    setup: Setup,
+    sim: Simulation,
+    watchdog: Watchdog,
+}
+
+/// What one step produced.
+#[derive(Clone, Debug, Default)]
+pub struct StepOutcome {
+    /// The sample, at sample steps.
+    pub sample: Option<Observables>,
+    /// Set when the watchdog fired.
+    pub alarm: Option<Alarm>,
+}
+
+impl Session {
+    /// Validates the setup and builds its start configuration.
+    pub fn new(setup: Setup) -> Result<Session, SetupError> {
+        let spec = setup.resolve()?;
+        let sim = Simulation::new(spec)?;
+        Ok(Session { setup, sim, watchdog: Watchdog::default() })
+    }
+
+    /// Continues from a checkpoint.
+    pub fn from_checkpoint(c: Checkpoint) -> Result<Session, SetupError> {
+        // The setup must still be valid; the saved spec carries any live changes.
+        c.setup.resolve()?;
+        let sim = Simulation::from_state(c.spec, c.state)?;
+        Ok(Session { setup: c.setup, sim, watchdog: Watchdog::default() })
+    }
+
+    /// The setup, including live changes.
+    pub fn setup(&self) -> &Setup {
+        &self.setup
+    }
+
+    /// The simulation.
+    pub fn simulation(&self) -> &Simulation {
+        &self.sim
+    }
+
+    /// Mutable simulation (rewind, tests).
+    pub fn simulation_mut(&mut self) -> &mut Simulation {
+        &mut self.sim
+    }
+
+    /// Units of the reference species.
+    pub fn units(&self) -> UnitSystem {
+        self.setup.units()
+    }
+
+    /// A checkpoint of the present state.
+    pub fn checkpoint(&self) -> Checkpoint {
+        Checkpoint { setup: self.setup.clone(), spec: self.sim.spec().clone(), state: self.sim.state() }
+    }
+
+    /// The sample of the present state.
+    pub fn observe(&self) -> Observables {
+        self.sim.observe()
+    }
+
+    /// Takes one step; samples and checks at multiples of `sample_every`.
+    pub fn step(&mut self) -> StepOutcome {
+        if let Err(b) = self.sim.step() {
+            return StepOutcome { sample: None, alarm: Some(Watchdog::blowup(&b)) };
+        }
+        let mut out = StepOutcome::default();
+        if self.sim.step_count() % self.setup.sample_every == 0 {
+            let o = self.sim.observe();
+            out.alarm = self.watchdog.check(&self.sim, &o);
+            out.sample = Some(o);
+        }
+        out
+    }
+
+    /// Changes the timestep; the setup records the new value in the unit given.
+    pub fn set_timestep(&mut self, dt: Duration) -> Result<(), SetupError> {
+        let mut setup = self.setup.clone();
+        setup.timestep = dt;
+        let spec = setup.resolve()?;
+        self.sim.set_timestep(spec.timestep)?;
+        self.setup = setup;
+        Ok(())
+    }
+
+    /// Changes cutoff, skin, potential mode and tail correction.
+    pub fn set_interaction(&mut self, cutoff: Length, skin: Length, potential: PotentialMode, tail_correction: bool) -> Result<(), SetupError> {
+        let mut setup = self.setup.clone();
+        setup.cutoff = cutoff;
+        setup.skin = skin;
+        setup.potential = potential;
+        setup.tail_correction = tail_correction;
+        let spec = setup.resolve()?;
+        self.sim.set_interaction(spec.cutoff, spec.skin, spec.potential, spec.tail_correction)?;
+        self.setup = setup;
+        Ok(())
+    }
+
+    /// Changes the ensemble and the thermostat target.
+    pub fn set_thermostat(&mut self, ensemble: Ensemble, temperature: Temperature) -> Result<(), SetupError> {
+        let mut setup = self.setup.clone();
+        setup.ensemble = ensemble;
+        setup.temperature = temperature;
+        let spec = setup.resolve()?;
+        self.sim.set_thermostat(spec.thermostat)?;
+        self.setup = setup;
+        Ok(())
+    }
+}

@@ -1,0 +1,182 @@
+//! Checkpoints: the exact state of a run, written atomically.
+//!
+//! Layout (all integers little-endian):
+//! `NOBLESCOPE-STATE 1\n`, u64 header length, a JSON header (setup, spec, scalars), then the raw
+//! arrays — types (u8 × N), positions, velocities, list reference positions (f64 × 3N each) —
+//! and an FNV-1a 64 checksum of everything before it. Floats are stored as their bits, so a
+//! continued run is bit-for-bit the run that was saved.
+
+use crate::io::setup::Setup;
+use crate::physics::{SimulationSpec, SimulationState};
+use serde::{Deserialize, Serialize};
+use std::io::Write;
+use std::path::Path;
+
+const MAGIC: &[u8] = b"NOBLESCOPE-STATE 1\n";
+
+/// What a checkpoint holds.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Checkpoint {
+    /// The setup the run was started from, with any live changes folded in.
+    pub setup: Setup,
+    /// The spec in force when saved.
+    pub spec: SimulationSpec,
+    pub state: SimulationState,
+}
+
+#[derive(Serialize, Deserialize)]
+struct Header {
+    setup_ron: String,
+    spec: SimulationSpec,
+    atoms: usize,
+    step: u64,
+    time: f64,
+    box_length: f64,
+    list_builds: u64,
+    heat: f64,
+    drift_origin: f64,
+    drift_scale: f64,
+}
+
+/// Why a checkpoint could not be read or written.
+#[derive(Debug, thiserror::Error)]
+pub enum CheckpointError {
+    #[error("{file}: {message}")]
+    Io { file: String, message: String },
+    #[error("{file}: not a Noblescope checkpoint or damaged ({message})")]
+    Format { file: String, message: String },
+}
+
+fn fnv1a(bytes: &[u8]) -> u64 {
+    let mut h: u64 = 0xcbf2_9ce4_8422_2325;
+    for &b in bytes {
+        h ^= b as u64;
+        h = h.wrapping_mul(0x0100_0000_01b3);
+    }
+    h
+}
+
+impl Checkpoint {
+    /// Encodes to bytes.
+    pub fn to_bytes(&self) -> Vec<u8> {
+        let s = &self.state;
+        let header = Header {
+            setup_ron: self.setup.to_ron(),
+            spec: self.spec.clone(),
+            atoms: s.positions.len(),
+            step: s.step,
+            time: s.time,
+            box_length: s.box_length,
+            list_builds: s.list_builds,
+            heat: s.heat,
+            drift_origin: s.drift_origin,
+            drift_scale: s.drift_scale,
+        };
+        let json = serde_json::to_vec(&header).expect("header serialises");
+        let n = s.positions.len();
+        let mut out = Vec::with_capacity(MAGIC.len() + 8 + json.len() + n * 73 + 8);
+        out.extend_from_slice(MAGIC);
+        out.extend_from_slice(&(json.len() as u64).to_le_bytes());
+        out.extend_from_slice(&json);
+        out.extend_from_slice(&s.types);
+        for arr in [&s.positions, &s.velocities, &s.list_reference] {
+            for v in arr.iter() {
+                for x in v {
+                    out.extend_from_slice(&x.to_bits().to_le_bytes());
+                }
+            }
+        }
+        let sum = fnv1a(&out);
+        out.extend_from_slice(&sum.to_le_bytes());
+        out
+    }
+
+    /// Decodes from bytes; `file` names the source in errors.
+    pub fn from_bytes(bytes: &[u8], file: &str) -> Result<Checkpoint, CheckpointError> {
+        let bad = |m: &str| CheckpointError::Format { file: file.into(), message: m.into() };
+        if bytes.len() < MAGIC.len() + 16 || &bytes[..MAGIC.len()] != MAGIC {
+            return Err(bad("missing header"));
+        }
+        let (body, tail) = bytes.split_at(bytes.len() - 8);
+        if fnv1a(body) != u64::from_le_bytes(tail.try_into().unwrap()) {
+            return Err(bad("checksum mismatch: the file is truncated or changed"));
+        }
+        let mut at = MAGIC.len();
+        let hlen = u64::from_le_bytes(body[at..at + 8].try_into().unwrap()) as usize;
+        at += 8;
+        if at + hlen > body.len() {
+            return Err(bad("header length beyond the end"));
+        }
+        let header: Header = serde_json::from_slice(&body[at..at + hlen]).map_err(|e| bad(&e.to_string()))?;
+        at += hlen;
+        let n = header.atoms;
+        if body.len() - at != n + 3 * 24 * n {
+            return Err(bad("array sizes do not match the atom count"));
+        }
+        let types = body[at..at + n].to_vec();
+        at += n;
+        let mut read = || -> Vec<[f64; 3]> {
+            let v = body[at..at + 24 * n]
+                .chunks_exact(24)
+                .map(|c| {
+                    let f = |k: usize| f64::from_bits(u64::from_le_bytes(c[8 * k..8 * k + 8].try_into().unwrap()));
+                    [f(0), f(1), f(2)]
+                })
+                .collect();
+            at += 24 * n;
+            v
+        };
+        let positions = read();
+        let velocities = read();
+        let list_reference = read();
+        let setup = Setup::parse(&header.setup_ron, &format!("{file} (embedded setup)")).map_err(|e| bad(&e.to_string()))?;
+        Ok(Checkpoint {
+            setup,
+            spec: header.spec,
+            state: SimulationState {
+                step: header.step,
+                time: header.time,
+                box_length: header.box_length,
+                types,
+                positions,
+                velocities,
+                list_reference,
+                list_builds: header.list_builds,
+                heat: header.heat,
+                drift_origin: header.drift_origin,
+                drift_scale: header.drift_scale,
+            },
+        })
+    }
+
+    /// Writes atomically: to a temporary file beside `path`, flushed to disk, then renamed over
+    /// it, so an interrupted write leaves the previous checkpoint intact.
+    pub fn save(&self, path: &Path) -> Result<(), CheckpointError> {
+        write_atomically(path, &self.to_bytes())
+    }
+
+    /// Reads a checkpoint file.
+    pub fn load(path: &Path) -> Result<Checkpoint, CheckpointError> {
+        let file = path.display().to_string();
+        let bytes = std::fs::read(path).map_err(|e| CheckpointError::Io { file: file.clone(), message: e.to_string() })?;
+        Checkpoint::from_bytes(&bytes, &file)
+    }
+}
+
+/// Writes `bytes` to `path` through a temporary file and a rename.
+pub fn write_atomically(path: &Path, bytes: &[u8]) -> Result<(), CheckpointError> {
+    let file = path.display().to_string();
+    let io = |e: std::io::Error| CheckpointError::Io { file: file.clone(), message: e.to_string() };
+    let name = path.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_else(|| "checkpoint".into());
+    let tmp = path.with_file_name(format!(".{name}.partial-{}", std::process::id()));
+    let result = (|| {
+        let mut f = std::fs::File::create(&tmp)?;
+        f.write_all(bytes)?;
+        f.sync_all()?;
+        std::fs::rename(&tmp, path)
+    })();
+    if result.is_err() {
+        let _ = std::fs::remove_file(&tmp);
+    }
+    result.map_err(io)
+}

@@ -1,0 +1,401 @@
+//! Setup files (RON): the schema a user writes, its validation, and its reduction to a
+//! [`SimulationSpec`] in reduced units.
+
+use crate::physics::lattice::whole_counts;
+use crate::physics::{PotentialMode, SimulationSpec, Species, Thermostat, UnitSystem};
+use serde::{Deserialize, Serialize};
+use std::path::Path;
+
+/// One species of the mixture and its share of the atoms.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct SpeciesShare {
+    pub kind: Species,
+    /// Fraction of the atoms, 0 < share ≤ 1; shares add up to 1.
+    pub share: f64,
+}
+
+/// Number or mass density of the box.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub enum Density {
+    GramsPerCubicCentimetre(f64),
+    KilogramsPerCubicMetre(f64),
+    PerCubicNanometre(f64),
+    /// ρσ³ of the reference species.
+    Reduced(f64),
+}
+
+/// A temperature.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub enum Temperature {
+    Kelvin(f64),
+    /// k_B T / ε of the reference species.
+    Reduced(f64),
+}
+
+/// A time span.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub enum Duration {
+    Femtoseconds(f64),
+    Picoseconds(f64),
+    /// In τ = σ √(m/ε) of the reference species.
+    Reduced(f64),
+}
+
+/// A length.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub enum Length {
+    /// In σ of the reference species.
+    Sigma(f64),
+    Angstrom(f64),
+}
+
+/// A rate (Langevin friction).
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub enum Rate {
+    PerPicosecond(f64),
+    /// In 1/τ.
+    Reduced(f64),
+}
+
+/// Temperature control.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub enum ThermostatChoice {
+    /// Stochastic velocity rescaling with the given relaxation time.
+    StochasticRescale { relaxation: Duration },
+    /// Langevin dynamics (BAOAB) with the given friction.
+    Langevin { friction: Rate },
+}
+
+/// Ensemble of the run.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub enum Ensemble {
+    /// Constant energy.
+    Nve,
+    /// Constant temperature at the setup's temperature.
+    Nvt { thermostat: ThermostatChoice },
+}
+
+/// One run, as written in a setup file.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Setup {
+    #[serde(default)]
+    pub title: String,
+    /// Species and shares; the first listed is the reference for reduced units.
+    pub species: Vec<SpeciesShare>,
+    pub atoms: u64,
+    pub density: Density,
+    pub temperature: Temperature,
+    pub timestep: Duration,
+    pub cutoff: Length,
+    #[serde(default = "default_skin")]
+    pub skin: Length,
+    #[serde(default)]
+    pub potential: PotentialMode,
+    #[serde(default)]
+    pub tail_correction: bool,
+    pub ensemble: Ensemble,
+    #[serde(default)]
+    pub seed: u64,
+    pub steps: u64,
+    /// Samples before this step are left out of averages.
+    #[serde(default)]
+    pub equilibration_steps: u64,
+    #[serde(default = "default_sample_every")]
+    pub sample_every: u64,
+    /// Write an XYZ frame every this many steps.
+    #[serde(default)]
+    pub trajectory_every: Option<u64>,
+}
+
+fn default_skin() -> Length {
+    Length::Sigma(0.3)
+}
+
+fn default_sample_every() -> u64 {
+    10
+}
+
+/// Largest atom count a setup may ask for.
+pub const MAX_ATOMS: u64 = 1_000_000;
+/// Largest number of species in one mixture.
+pub const MAX_SPECIES: usize = 6;
+/// Bytes per atom the engine needs, with room for the neighbour list and a rewind snapshot.
+pub const BYTES_PER_ATOM_ESTIMATE: u64 = 600;
+
+/// Why a setup cannot be run.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+pub enum SetupError {
+    /// The text is not a valid setup.
+    #[error("{file}:{line}:{column}: {message}")]
+    Parse { file: String, line: usize, column: usize, message: String },
+    /// A field has a value outside its allowed range.
+    #[error("{field}: {value} is out of range; allowed: {allowed}")]
+    Field { field: String, value: String, allowed: String },
+    /// The file could not be read.
+    #[error("{file}: {message}")]
+    Read { file: String, message: String },
+}
+
+impl SetupError {
+    fn field(field: &str, value: impl std::fmt::Display, allowed: impl Into<String>) -> Self {
+        SetupError::Field { field: field.into(), value: value.to_string(), allowed: allowed.into() }
+    }
+
+    /// The field the error is about, if it is about one.
+    pub fn field_name(&self) -> Option<&str> {
+        match self {
+            SetupError::Field { field, .. } => Some(field),
+            _ => None,
+        }
+    }
+}
+
+impl From<crate::physics::SpecError> for SetupError {
+    fn from(e: crate::physics::SpecError) -> Self {
+        SetupError::Field { field: e.field.into(), value: e.value, allowed: e.allowed }
+    }
+}
+
+impl Setup {
+    /// Parses setup text; `file` names it in error messages.
+    pub fn parse(text: &str, file: &str) -> Result<Setup, SetupError> {
+        ron::Options::default().from_str(text).map_err(|e: ron::error::SpannedError| SetupError::Parse {
+            file: file.into(),
+            line: e.span.start.line,
+            column: e.span.start.col,
+            message: e.code.to_string(),
+        })
+    }
+
+    /// Reads and parses a setup file (not yet validated; see [`Setup::resolve`]).
+    pub fn load(path: &Path) -> Result<Setup, SetupError> {
+        let text = std::fs::read_to_string(path)
+            .map_err(|e| SetupError::Read { file: path.display().to_string(), message: e.to_string() })?;
+        Setup::parse(&text, &path.display().to_string())
+    }
+
+    /// The setup as RON text, in the same layout users write.
+    pub fn to_ron(&self) -> String {
+        let cfg = ron::ser::PrettyConfig::new().struct_names(true).depth_limit(3);
+        ron::ser::to_string_pretty(self, cfg).expect("a setup always serialises")
+    }
+
+    /// Reference species (first listed); `ReducedLJ` when the list is empty.
+    pub fn reference(&self) -> Species {
+        self.species.first().map(|s| s.kind).unwrap_or(Species::ReducedLJ)
+    }
+
+    /// Unit system of this setup.
+    pub fn units(&self) -> UnitSystem {
+        UnitSystem::new(self.reference())
+    }
+
+    /// Mean molar mass of the mixture relative to the reference species.
+    fn mean_mass_ratio(&self) -> f64 {
+        let m0 = self.reference().params().molar_mass;
+        let total: f64 = self.species.iter().map(|s| s.share).sum();
+        self.species.iter().map(|s| s.share / total * s.kind.params().molar_mass / m0).sum()
+    }
+
+    /// Reduced number density of a density value.
+    pub fn reduced_density(&self, d: Density) -> Result<f64, SetupError> {
+        let u = self.units();
+        let real = |v: f64| -> Result<f64, SetupError> {
+            if !u.has_real_units() {
+                return Err(SetupError::field("density", format!("{d:?}"), "Reduced(…) for the reduced Lennard-Jones fluid"));
+            }
+            Ok(v)
+        };
+        Ok(match d {
+            Density::Reduced(x) => x,
+            Density::PerCubicNanometre(x) => real(x)? / u.number_density_per_nm3(),
+            Density::GramsPerCubicCentimetre(x) => real(x)? / (u.mass_density_g_cm3() * self.mean_mass_ratio()),
+            Density::KilogramsPerCubicMetre(x) => real(x)? * 1e-3 / (u.mass_density_g_cm3() * self.mean_mass_ratio()),
+        })
+    }
+
+    /// Reduced value of a temperature.
+    pub fn reduced_temperature(&self, field: &str, t: Temperature) -> Result<f64, SetupError> {
+        let u = self.units();
+        Ok(match t {
+            Temperature::Reduced(x) => x,
+            Temperature::Kelvin(x) => {
+                if !u.has_real_units() {
+                    return Err(SetupError::field(field, format!("{t:?}"), "Reduced(…) for the reduced Lennard-Jones fluid"));
+                }
+                x / u.temperature_kelvin()
+            }
+        })
+    }
+
+    /// Reduced value of a time span.
+    pub fn reduced_duration(&self, field: &str, t: Duration) -> Result<f64, SetupError> {
+        let u = self.units();
+        let need_real = || SetupError::field(field, format!("{t:?}"), "Reduced(…) for the reduced Lennard-Jones fluid");
+        Ok(match t {
+            Duration::Reduced(x) => x,
+            Duration::Femtoseconds(x) if u.has_real_units() => x / u.tau_fs(),
+            Duration::Picoseconds(x) if u.has_real_units() => x / u.tau_ps(),
+            _ => return Err(need_real()),
+        })
+    }
+
+    /// Reduced value of a length.
+    pub fn reduced_length(&self, field: &str, l: Length) -> Result<f64, SetupError> {
+        let u = self.units();
+        Ok(match l {
+            Length::Sigma(x) => x,
+            Length::Angstrom(x) if u.has_real_units() => x / u.sigma_angstrom(),
+            Length::Angstrom(_) => return Err(SetupError::field(field, format!("{l:?}"), "Sigma(…) for the reduced Lennard-Jones fluid")),
+        })
+    }
+
+    /// Reduced value of a rate.
+    pub fn reduced_rate(&self, field: &str, r: Rate) -> Result<f64, SetupError> {
+        let u = self.units();
+        Ok(match r {
+            Rate::Reduced(x) => x,
+            Rate::PerPicosecond(x) if u.has_real_units() => x * u.tau_ps(),
+            Rate::PerPicosecond(_) => return Err(SetupError::field(field, format!("{r:?}"), "Reduced(…) for the reduced Lennard-Jones fluid")),
+        })
+    }
+
+    /// Validates every field and reduces the setup to a spec in reduced units.
+    ///
+    /// Errors name the field, the value given and the allowed range.
+    pub fn resolve(&self) -> Result<SimulationSpec, SetupError> {
+        self.check_species()?;
+        if !(2..=MAX_ATOMS).contains(&self.atoms) {
+            return Err(SetupError::field("atoms", self.atoms, format!("2 to {MAX_ATOMS}")));
+        }
+        check_memory(self.atoms)?;
+        let density = self.reduced_density(self.density)?;
+        in_range("density", format!("{:?} = {density:.5} reduced", self.density), density, 1e-6, 1.5, "reduced density ρσ³ from 1e-6 to 1.5")?;
+        let temperature = self.reduced_temperature("temperature", self.temperature)?;
+        in_range("temperature", format!("{:?} = {temperature:.5} reduced", self.temperature), temperature, 1e-3, 100.0, "reduced temperature kT/ε from 0.001 to 100")?;
+        let dt = self.reduced_duration("timestep", self.timestep)?;
+        in_range("timestep", format!("{:?} = {dt:.6} τ", self.timestep), dt, 1e-5, 0.05, "1e-5 τ to 0.05 τ")?;
+        let cutoff = self.reduced_length("cutoff", self.cutoff)?;
+        in_range("cutoff", format!("{:?} = {cutoff:.4} σ", self.cutoff), cutoff, 1.0, 10.0, "1 σ to 10 σ")?;
+        let skin = self.reduced_length("skin", self.skin)?;
+        in_range("skin", format!("{:?} = {skin:.4} σ", self.skin), skin, 0.0, 2.0, "0 σ to 2 σ")?;
+        let thermostat = match self.ensemble {
+            Ensemble::Nve => Thermostat::None,
+            Ensemble::Nvt { thermostat: ThermostatChoice::StochasticRescale { relaxation } } => {
+                let tau = self.reduced_duration("ensemble.relaxation", relaxation)?;
+                in_range("ensemble.relaxation", format!("{relaxation:?} = {tau:.5} τ"), tau, dt, 1e4, &format!("one timestep ({dt:.5} τ) to 10000 τ"))?;
+                Thermostat::StochasticRescale { target: temperature, tau }
+            }
+            Ensemble::Nvt { thermostat: ThermostatChoice::Langevin { friction } } => {
+                let gamma = self.reduced_rate("ensemble.friction", friction)?;
+                in_range("ensemble.friction", format!("{friction:?} = {gamma:.5} /τ"), gamma, 1e-4, 1.0 / dt, &format!("1e-4 /τ to one per timestep ({:.1} /τ)", 1.0 / dt))?;
+                Thermostat::Langevin { target: temperature, gamma }
+            }
+        };
+        if self.steps == 0 || self.steps > 10_000_000_000 {
+            return Err(SetupError::field("steps", self.steps, "1 to 10000000000"));
+        }
+        if self.sample_every == 0 || self.sample_every > self.steps {
+            return Err(SetupError::field("sample_every", self.sample_every, format!("1 to steps ({})", self.steps)));
+        }
+        if self.equilibration_steps >= self.steps {
+            return Err(SetupError::field("equilibration_steps", self.equilibration_steps, format!("0 to steps − 1 ({})", self.steps - 1)));
+        }
+        if let Some(k) = self.trajectory_every {
+            if k == 0 {
+                return Err(SetupError::field("trajectory_every", "Some(0)", "None or Some(n) with n ≥ 1"));
+            }
+        }
+        let shares: Vec<f64> = self.species.iter().map(|s| s.share).collect();
+        let spec = SimulationSpec {
+            kinds: self.species.iter().map(|s| s.kind).collect(),
+            counts: whole_counts(&shares, self.atoms as usize),
+            density,
+            temperature,
+            timestep: dt,
+            cutoff,
+            skin,
+            potential: self.potential,
+            tail_correction: self.tail_correction,
+            thermostat,
+            seed: self.seed,
+        };
+        spec.check()?;
+        Ok(spec)
+    }
+
+    fn check_species(&self) -> Result<(), SetupError> {
+        let n = self.species.len();
+        if n == 0 || n > MAX_SPECIES {
+            return Err(SetupError::field("species", format!("{n} entries"), format!("1 to {MAX_SPECIES} species")));
+        }
+        for (i, s) in self.species.iter().enumerate() {
+            if !(s.share > 0.0 && s.share <= 1.0) {
+                return Err(SetupError::field(&format!("species[{i}].share"), s.share, "0 < share ≤ 1"));
+            }
+            if self.species[..i].iter().any(|o| o.kind == s.kind) {
+                return Err(SetupError::field(&format!("species[{i}].kind"), format!("{:?} (listed twice)", s.kind), "each species at most once"));
+            }
+            if n > 1 && s.kind == Species::ReducedLJ {
+                return Err(SetupError::field(&format!("species[{i}].kind"), "ReducedLJ in a mixture", "ReducedLJ only on its own"));
+            }
+        }
+        let sum: f64 = self.species.iter().map(|s| s.share).sum();
+        if (sum - 1.0).abs() > 1e-6 {
+            return Err(SetupError::field("species", format!("shares adding up to {sum}"), "shares adding up to 1 (within 1e-6)"));
+        }
+        Ok(())
+    }
+
+    /// Notes for the user that are not errors (e.g. quantum effects at low temperature).
+    pub fn cautions(&self) -> Vec<String> {
+        let mut notes = Vec::new();
+        let Ok(t) = self.reduced_temperature("temperature", self.temperature) else { return notes };
+        let t_ref_k = self.units().temperature_kelvin();
+        for s in &self.species {
+            if let Some(limit) = s.kind.quantum_warning_below_kelvin() {
+                let kelvin = t * t_ref_k;
+                if kelvin < limit {
+                    notes.push(format!(
+                        "{} at {kelvin:.0} K: classical dynamics misses quantum effects (zero-point motion, exchange) that are large here; treat results as qualitative.",
+                        s.kind.label()
+                    ));
+                }
+            }
+        }
+        notes
+    }
+}
+
+fn in_range(field: &str, shown: String, v: f64, lo: f64, hi: f64, allowed: &str) -> Result<(), SetupError> {
+    if v.is_finite() && v >= lo && v <= hi {
+        Ok(())
+    } else {
+        Err(SetupError::field(field, shown, allowed))
+    }
+}
+
+/// Refuses atom counts whose arrays would not fit in the memory the machine has free.
+fn check_memory(atoms: u64) -> Result<(), SetupError> {
+    let need = atoms.saturating_mul(BYTES_PER_ATOM_ESTIMATE);
+    if let Some(available) = available_memory_bytes() {
+        if need > available {
+            return Err(SetupError::field(
+                "atoms",
+                format!("{atoms} (needs about {} MB)", need / 1_000_000),
+                format!("at most {} atoms with the {} MB of memory available now", available / BYTES_PER_ATOM_ESTIMATE, available / 1_000_000),
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// MemAvailable from /proc/meminfo, where there is one.
+pub fn available_memory_bytes() -> Option<u64> {
+    let text = std::fs::read_to_string("/proc/meminfo").ok()?;
+    let line = text.lines().find(|l| l.starts_with("MemAvailable:"))?;
+    let kb: u64 = line.split_whitespace().nth(1)?.parse().ok()?;
+    Some(kb * 1024)
+}

@@ -1,0 +1,201 @@
+//! Command line: no arguments opens the window; subcommands run headless.
+
+use clap::{Parser, Subcommand};
+use noblescope::engine::bench;
+use noblescope::engine::headless::{self, HeadlessOptions, RunError};
+use noblescope::engine::Session;
+use noblescope::io::checkpoint::Checkpoint;
+use noblescope::io::Setup;
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+#[derive(Parser)]
+#[command(name = "noblescope", version, about = "Set up, run and watch molecular dynamics of noble gases.", long_about = None)]
+struct Cli {
+    #[command(subcommand)]
+    command: Option<Cmd>,
+}
+
+#[derive(Subcommand)]
+enum Cmd {
+    /// Run a setup file headless and write energy.csv, summary.json and final.checkpoint.
+    Run {
+        /// The setup file (RON).
+        setup: PathBuf,
+        /// Run until this step instead of the setup's `steps`.
+        #[arg(long)]
+        steps: Option<u64>,
+        /// Output folder (default: runs/<setup file name>).
+        #[arg(long)]
+        out: Option<PathBuf>,
+        /// Worker threads for the force loop (default: all cores).
+        #[arg(long)]
+        threads: Option<usize>,
+        /// No progress bar.
+        #[arg(long)]
+        quiet: bool,
+        /// Replace the files of an earlier run in the output folder.
+        #[arg(long)]
+        overwrite: bool,
+    },
+    /// Continue a run from a checkpoint, bit for bit as if it had never stopped.
+    Resume {
+        /// A checkpoint written by `run` or by the window.
+        checkpoint: PathBuf,
+        /// Run until this step (default: the setup's `steps`).
+        #[arg(long)]
+        steps: Option<u64>,
+        /// Output folder for the continued run.
+        #[arg(long)]
+        out: PathBuf,
+        #[arg(long)]
+        threads: Option<usize>,
+        #[arg(long)]
+        quiet: bool,
+        #[arg(long)]
+        overwrite: bool,
+    },
+    /// Measure speed and memory on the standard LJ liquid.
+    Bench {
+        /// Atom counts to measure, ascending.
+        #[arg(long, value_delimiter = ',', default_values_t = vec![32_000usize, 256_000])]
+        atoms: Vec<usize>,
+        /// Timed steps per size.
+        #[arg(long, default_value_t = 200)]
+        steps: u64,
+        /// Untimed steps before timing.
+        #[arg(long, default_value_t = 20)]
+        warmup: u64,
+        #[arg(long)]
+        threads: Option<usize>,
+        /// Write the results as JSON here too.
+        #[arg(long)]
+        json: Option<PathBuf>,
+    },
+}
+
+fn set_threads(threads: Option<usize>) -> Result<usize, RunError> {
+    if let Some(n) = threads {
+        if n == 0 || n > 1024 {
+            return Err(RunError::BadInput(format!("--threads: {n} is out of range; allowed: 1 to 1024")));
+        }
+        rayon::ThreadPoolBuilder::new().num_threads(n).build_global().map_err(|e| RunError::Failed(e.to_string()))?;
+    }
+    Ok(rayon::current_num_threads())
+}
+
+fn default_out(setup: &Path) -> PathBuf {
+    let stem = setup.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "run".into());
+    PathBuf::from("runs").join(stem)
+}
+
+fn report(summary: &noblescope::io::summary::Summary, out: &Path, quiet: bool) {
+    if quiet {
+        return;
+    }
+    let pe = summary.potential_energy_per_atom;
+    let p = summary.pressure;
+    let t = summary.temperature;
+    println!("{} atoms, {} steps, {} samples averaged -> {}", summary.atoms, summary.steps, summary.samples_used, out.display());
+    println!("  potential energy per atom  {:.5} ± {:.5} ε", pe.mean, pe.stderr);
+    println!("  pressure                   {:.5} ± {:.5} ε/σ³", p.mean, p.stderr);
+    println!("  temperature                {:.5} ± {:.5} ε/k", t.mean, t.stderr);
+    if let Some(si) = &summary.si {
+        println!(
+            "  = {:.4} kJ/mol, {:.2} ± {:.2} bar, {:.2} K, {:.4} g/cm³",
+            si.potential_energy_per_atom.mean, si.pressure.mean, si.pressure.stderr, si.temperature.mean, si.density
+        );
+    }
+    println!("  relative energy drift      {:.3e}", summary.relative_energy_drift);
+    println!("  speed                      {:.3e} atom-steps/s on {} threads", summary.atom_steps_per_second, summary.threads);
+    if summary.equilibration.configured_start_too_early {
+        println!(
+            "  note: the energy looks equilibrated only from step {} (equilibration_steps is {})",
+            summary.equilibration.detected_start_step, summary.equilibration.configured_start_step
+        );
+    }
+    println!("  {}", noblescope::io::summary::MODEL_CAUTION);
+}
+
+fn run_headless(cmd: Cmd) -> Result<(), RunError> {
+    match cmd {
+        Cmd::Run { setup, steps, out, threads, quiet, overwrite } => {
+            let threads = set_threads(threads)?;
+            let parsed = Setup::load(&setup).map_err(|e| RunError::BadInput(e.to_string()))?;
+            let out = out.unwrap_or_else(|| default_out(&setup));
+            headless::check_output_dir(&out, overwrite)?;
+            for note in parsed.cautions() {
+                eprintln!("caution: {note}");
+            }
+            let session = Session::new(parsed).map_err(|e| RunError::BadInput(format!("{}: {e}", setup.display())))?;
+            let opts = HeadlessOptions { until_step: steps, out: out.clone(), threads, quiet, overwrite };
+            let summary = headless::run(session, true, &opts)?;
+            report(&summary, &out, quiet);
+            Ok(())
+        }
+        Cmd::Resume { checkpoint, steps, out, threads, quiet, overwrite } => {
+            let threads = set_threads(threads)?;
+            headless::check_output_dir(&out, overwrite)?;
+            let c = Checkpoint::load(&checkpoint).map_err(|e| RunError::BadInput(e.to_string()))?;
+            let session = Session::from_checkpoint(c).map_err(|e| RunError::BadInput(format!("{}: {e}", checkpoint.display())))?;
+            let opts = HeadlessOptions { until_step: steps, out: out.clone(), threads, quiet, overwrite };
+            let summary = headless::run(session, false, &opts)?;
+            report(&summary, &out, quiet);
+            Ok(())
+        }
+        Cmd::Bench { atoms, steps, warmup, threads, json } => {
+            set_threads(threads)?;
+            let mut sorted = atoms.clone();
+            sorted.sort_unstable();
+            if let Some(&a) = sorted.iter().find(|&&a| !(500..=4_000_000).contains(&a)) {
+                return Err(RunError::BadInput(format!("--atoms: {a} is out of range; allowed: 500 to 4000000")));
+            }
+            println!("standard LJ liquid, rho*=0.8442, T*=1.44, rc=2.5, skin=0.3, TruncatedShifted, NVE, dt*=0.005");
+            println!("{:>9} {:>7} {:>8} {:>14} {:>10} {:>8} {:>12} {:>12}", "atoms", "steps", "threads", "atom-steps/s", "ns/a-step", "builds", "peak B/atom", "heap B/atom");
+            let mut results = Vec::new();
+            for a in sorted {
+                let r = bench::measure(a, warmup, steps);
+                println!(
+                    "{:>9} {:>7} {:>8} {:>14.4e} {:>10.1} {:>8} {:>12} {:>12.1}",
+                    r.atoms, r.steps, r.threads, r.atom_steps_per_second, r.nanoseconds_per_atom_step, r.list_builds,
+                    r.peak_bytes_per_atom.map(|b| format!("{b:.1}")).unwrap_or_else(|| "n/a".into()), r.heap_bytes_per_atom
+                );
+                results.push(r);
+            }
+            if results.len() >= 2 {
+                let first = &results[0];
+                let last = &results[results.len() - 1];
+                println!("cost per atom-step at {} atoms / at {} atoms: {:.3}", last.atoms, first.atoms, last.nanoseconds_per_atom_step / first.nanoseconds_per_atom_step);
+            }
+            if let Some(path) = json {
+                let text = serde_json::to_string_pretty(&results).map_err(|e| RunError::Failed(e.to_string()))?;
+                std::fs::write(&path, text).map_err(|e| RunError::Failed(format!("{}: {e}", path.display())))?;
+            }
+            Ok(())
+        }
+    }
+}
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    match cli.command {
+        None => match open_window() {
+            Ok(()) => ExitCode::SUCCESS,
+            Err(e) => {
+                eprintln!("error: {e:#}");
+                ExitCode::from(1)
+            }
+        },
+        Some(cmd) => match run_headless(cmd) {
+            Ok(()) => ExitCode::SUCCESS,
+            Err(e) => {
+                eprintln!("error: {e}");
+                ExitCode::from(e.exit_code() as u8)
+            }
+        },
+    }
+}
+
+fn open_window() -> anyhow::Result<()> {
+    anyhow::bail!("the window is not built into this binary yet")
+}

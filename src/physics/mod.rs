@@ -1,0 +1,22 @@
+//! Pure numerics of the model, in reduced units. Knows nothing of threads, files or windows.
+
+pub mod forces;
+pub mod lattice;
+pub mod neighbours;
+pub mod observables;
+pub mod parallel;
+pub mod potential;
+pub mod random;
+pub mod simulation;
+pub mod species;
+pub mod system;
+pub mod thermostat;
+pub mod units;
+
+pub use observables::Observables;
+pub use potential::PotentialMode;
+pub use simulation::{Blowup, Simulation, SimulationSpec, SimulationState, SpecError};
+pub use species::Species;
+pub use thermostat::Thermostat;
+pub use system::System;
+pub use units::UnitSystem;

@@ -1,0 +1,22 @@
+//! What is measured at each sample, in reduced units.
+
+use serde::{Deserialize, Serialize};
+
+/// One sample of the thermodynamic state. Energies are per atom.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Serialize, Deserialize)]
+pub struct Observables {
+    pub step: u64,
+    /// Simulated time since step 0.
+    pub time: f64,
+    pub kinetic: f64,
+    /// Pair energies of the potential mode plus the tail correction when enabled.
+    pub potential: f64,
+    pub total: f64,
+    /// Total energy minus the heat the thermostat took out; constant in exact dynamics.
+    pub conserved: f64,
+    pub temperature: f64,
+    /// Virial pressure plus the tail correction when enabled.
+    pub pressure: f64,
+    /// (E_cons − E_cons(0)) / max(|E_cons(0)|, K(0)): relative drift of the conserved energy.
+    pub drift: f64,
+}

@@ -1,0 +1,562 @@
+//! One simulation: the step pipeline (neighbours → forces → integrate) and its bookkeeping.
+//!
+//! [`Simulation`] knows nothing of threads, files or windows: it is built from a
+//! [`SimulationSpec`] in reduced units, advanced with [`Simulation::step`], measured with
+//! [`Simulation::observe`], and saved or restored through [`SimulationState`].
+
+use super::forces::{self, ForceScratch, ForceSums};
+use super::lattice;
+use super::neighbours::NeighbourList;
+use super::observables::Observables;
+use super::parallel::ordered_sum;
+use super::potential::{PairTable, PotentialMode};
+use super::random::{Purpose, Stream};
+use super::species::Species;
+use super::system::System;
+use super::thermostat::{self, Thermostat};
+use rayon::prelude::*;
+use serde::{Deserialize, Serialize};
+
+/// Everything that defines a run, in reduced units of the first species.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct SimulationSpec {
+    /// Species of each type index; the first is the unit reference.
+    pub kinds: Vec<Species>,
+    /// Atoms of each type.
+    pub counts: Vec<usize>,
+    /// Number density N/V.
+    pub density: f64,
+    /// Start temperature (and thermostat target unless the thermostat says otherwise).
+    pub temperature: f64,
+    pub timestep: f64,
+    pub cutoff: f64,
+    pub skin: f64,
+    pub potential: PotentialMode,
+    pub tail_correction: bool,
+    pub thermostat: Thermostat,
+    pub seed: u64,
+}
+
+/// A spec value outside what the physics can run, naming the field.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+#[error("{field}: {value} is out of range; allowed: {allowed}")]
+pub struct SpecError {
+    pub field: &'static str,
+    pub value: String,
+    pub allowed: String,
+}
+
+/// The run became non-finite: at which step, and which atoms.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+#[error("the simulation blew up at step {step}: {reason} (atoms {atoms:?})")]
+pub struct Blowup {
+    pub step: u64,
+    pub reason: String,
+    /// Up to eight atoms involved (non-finite, or with the largest forces).
+    pub atoms: Vec<usize>,
+}
+
+impl SimulationSpec {
+    /// Total atoms.
+    pub fn atoms(&self) -> usize {
+        self.counts.iter().sum()
+    }
+
+    /// Edge of the cubic box.
+    pub fn box_length(&self) -> f64 {
+        (self.atoms() as f64 / self.density).cbrt()
+    }
+
+    /// Degrees of freedom: 3N − 3 when total momentum is conserved, 3N under Langevin friction.
+    pub fn degrees_of_freedom(&self) -> f64 {
+        let n = self.atoms() as f64;
+        match self.thermostat {
+            Thermostat::Langevin { .. } => 3.0 * n,
+            _ => 3.0 * n - 3.0,
+        }
+    }
+
+    /// Checks the values the physics needs; the setup layer checks the rest with units.
+    pub fn check(&self) -> Result<(), SpecError> {
+        let err = |field, value: String, allowed: &str| Err(SpecError { field, value, allowed: allowed.into() });
+        if self.kinds.is_empty() || self.kinds.len() != self.counts.len() || self.kinds.len() > 255 {
+            return err("species", format!("{} species", self.kinds.len()), "1 to 255 species, one count each");
+        }
+        if self.atoms() < 2 {
+            return err("atoms", self.atoms().to_string(), "at least 2");
+        }
+        if !(self.density > 0.0 && self.density.is_finite()) {
+            return err("density", self.density.to_string(), "a positive number");
+        }
+        if !(self.temperature >= 0.0 && self.temperature.is_finite()) {
+            return err("temperature", self.temperature.to_string(), "zero or positive");
+        }
+        if !(self.timestep > 0.0 && self.timestep.is_finite()) {
+            return err("timestep", self.timestep.to_string(), "a positive number");
+        }
+        if !(self.cutoff > 0.0 && self.skin >= 0.0) {
+            return err("cutoff", format!("{} (skin {})", self.cutoff, self.skin), "cutoff > 0 and skin ≥ 0");
+        }
+        let half = 0.5 * self.box_length();
+        if self.cutoff + self.skin > half {
+            return err(
+                "cutoff",
+                format!("cutoff + skin = {:.4} σ", self.cutoff + self.skin),
+                &format!("at most half the box edge, {half:.4} σ (use more atoms, a lower density or a shorter cutoff)"),
+            );
+        }
+        match self.thermostat {
+            Thermostat::None => {}
+            Thermostat::StochasticRescale { target, tau } => {
+                if !(target > 0.0 && tau > 0.0 && tau.is_finite()) {
+                    return err("ensemble", format!("target {target}, relaxation {tau}"), "target > 0 and relaxation time > 0");
+                }
+            }
+            Thermostat::Langevin { target, gamma } => {
+                if !(target > 0.0 && gamma > 0.0 && gamma.is_finite()) {
+                    return err("ensemble", format!("target {target}, friction {gamma}"), "target > 0 and friction > 0");
+                }
+            }
+        }
+        Ok(())
+    }
+
+    fn pair_table(&self) -> PairTable {
+        let reference = self.kinds[0].params();
+        let eps: Vec<f64> = self.kinds.iter().map(|k| k.params().epsilon_kelvin / reference.epsilon_kelvin).collect();
+        let sig: Vec<f64> = self.kinds.iter().map(|k| k.params().sigma_angstrom / reference.sigma_angstrom).collect();
+        PairTable::lorentz_berthelot(&eps, &sig, self.cutoff, self.potential)
+    }
+
+    fn masses(&self) -> Vec<f64> {
+        let m0 = self.kinds[0].params().molar_mass;
+        self.kinds.iter().map(|k| k.params().molar_mass / m0).collect()
+    }
+}
+
+/// The exact dynamic state of a run: enough to continue it bit for bit.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct SimulationState {
+    pub step: u64,
+    pub time: f64,
+    pub box_length: f64,
+    pub types: Vec<u8>,
+    pub positions: Vec<[f64; 3]>,
+    pub velocities: Vec<[f64; 3]>,
+    /// Positions at the last neighbour-list build (the list is rebuilt from these).
+    pub list_reference: Vec<[f64; 3]>,
+    pub list_builds: u64,
+    /// Energy the thermostat has added since step 0.
+    pub heat: f64,
+    pub drift_origin: f64,
+    pub drift_scale: f64,
+}
+
+/// A running simulation.
+pub struct Simulation {
+    spec: SimulationSpec,
+    system: System,
+    table: PairTable,
+    list: NeighbourList,
+    scratch: ForceScratch,
+    sums: ForceSums,
+    step: u64,
+    time: f64,
+    heat: f64,
+    drift_origin: f64,
+    drift_scale: f64,
+    tail_energy: f64,
+    tail_pressure: f64,
+}
+
+impl Simulation {
+    /// Builds the start configuration (fcc lattice, Maxwell–Boltzmann velocities) and forces.
+    pub fn new(spec: SimulationSpec) -> Result<Self, SpecError> {
+        spec.check()?;
+        let l = spec.box_length();
+        let (positions, types) = lattice::fcc_start(&spec.counts, l, spec.seed);
+        let masses = spec.masses();
+        let velocities = lattice::maxwell_boltzmann(&masses, &types, spec.temperature, spec.degrees_of_freedom(), spec.seed);
+        let n = positions.len();
+        let system = System { box_length: l, positions, velocities, forces: vec![[0.0; 3]; n], types, kinds: spec.kinds.clone(), masses };
+        let mut sim = Self::assemble(spec, system);
+        sim.list.build(&sim.system.positions, l);
+        sim.compute_forces();
+        sim.rebase_drift();
+        Ok(sim)
+    }
+
+    /// Continues from a saved state; the spec must describe the same atoms.
+    pub fn from_state(spec: SimulationSpec, state: SimulationState) -> Result<Self, SpecError> {
+        spec.check()?;
+        let n = spec.atoms();
+        if state.positions.len() != n || state.velocities.len() != n || state.types.len() != n || state.list_reference.len() != n {
+            return Err(SpecError { field: "atoms", value: format!("{} in the saved state", state.positions.len()), allowed: format!("{n}, as in the setup") });
+        }
+        if state.types.iter().any(|&t| t as usize >= spec.kinds.len()) {
+            return Err(SpecError { field: "species", value: "a type index beyond the species list".into(), allowed: format!("{} species", spec.kinds.len()) });
+        }
+        let system = System {
+            box_length: state.box_length,
+            positions: state.positions,
+            velocities: state.velocities,
+            forces: vec![[0.0; 3]; n],
+            types: state.types,
+            kinds: spec.kinds.clone(),
+            masses: spec.masses(),
+        };
+        let mut sim = Self::assemble(spec, system);
+        sim.list.build(&state.list_reference, state.box_length);
+        sim.list.set_builds(state.list_builds);
+        sim.step = state.step;
+        sim.time = state.time;
+        sim.heat = state.heat;
+        sim.drift_origin = state.drift_origin;
+        sim.drift_scale = state.drift_scale;
+        sim.compute_forces();
+        Ok(sim)
+    }
+
+    fn assemble(spec: SimulationSpec, system: System) -> Self {
+        let table = spec.pair_table();
+        let list = NeighbourList::new(spec.cutoff, spec.skin);
+        let mut sim = Simulation {
+            spec,
+            system,
+            table,
+            list,
+            scratch: ForceScratch::default(),
+            sums: ForceSums::default(),
+            step: 0,
+            time: 0.0,
+            heat: 0.0,
+            drift_origin: 0.0,
+            drift_scale: 1.0,
+            tail_energy: 0.0,
+            tail_pressure: 0.0,
+        };
+        sim.update_tails();
+        sim
+    }
+
+    fn update_tails(&mut self) {
+        if self.spec.tail_correction {
+            let rho = self.system.density();
+            let x = self.system.fractions();
+            self.tail_energy = self.table.tail_energy_per_atom(rho, &x);
+            self.tail_pressure = self.table.tail_pressure(rho, &x);
+        } else {
+            self.tail_energy = 0.0;
+            self.tail_pressure = 0.0;
+        }
+    }
+
+    /// Captures the exact state.
+    pub fn state(&self) -> SimulationState {
+        SimulationState {
+            step: self.step,
+            time: self.time,
+            box_length: self.system.box_length,
+            types: self.system.types.clone(),
+            positions: self.system.positions.clone(),
+            velocities: self.system.velocities.clone(),
+            list_reference: self.list.reference().to_vec(),
+            list_builds: self.list.builds(),
+            heat: self.heat,
+            drift_origin: self.drift_origin,
+            drift_scale: self.drift_scale,
+        }
+    }
+
+    /// The spec in force (after any live changes).
+    pub fn spec(&self) -> &SimulationSpec {
+        &self.spec
+    }
+
+    /// The atoms.
+    pub fn system(&self) -> &System {
+        &self.system
+    }
+
+    /// Mutable access to the atoms, for tests and special protocols (e.g. velocity reversal).
+    /// Forces are recomputed by the next step; call [`Simulation::refresh`] to do it now.
+    pub fn system_mut(&mut self) -> &mut System {
+        &mut self.system
+    }
+
+    /// Steps taken since the start.
+    pub fn step_count(&self) -> u64 {
+        self.step
+    }
+
+    /// Simulated time since the start.
+    pub fn time(&self) -> f64 {
+        self.time
+    }
+
+    /// Neighbour-list builds so far.
+    pub fn list_builds(&self) -> u64 {
+        self.list.builds()
+    }
+
+    /// The pair table in force.
+    pub fn table(&self) -> &PairTable {
+        &self.table
+    }
+
+    /// The neighbour list.
+    pub fn neighbour_list(&self) -> &NeighbourList {
+        &self.list
+    }
+
+    /// Bytes of heap memory held by the per-atom arrays and the neighbour list.
+    pub fn heap_bytes(&self) -> usize {
+        let s = &self.system;
+        24 * (s.positions.capacity() + s.velocities.capacity() + s.forces.capacity()) + s.types.capacity() + self.list.heap_bytes()
+    }
+
+    /// Makes the drift reference the present conserved energy.
+    pub fn rebase_drift(&mut self) {
+        let k = self.system.kinetic_energy();
+        let e = k + self.pair_potential_total() - self.heat;
+        self.drift_origin = e;
+        self.drift_scale = e.abs().max(k).max(f64::MIN_POSITIVE);
+    }
+
+    fn pair_potential_total(&self) -> f64 {
+        self.sums.potential + self.tail_energy * self.system.len() as f64
+    }
+
+    /// Changes the timestep from the next step on.
+    pub fn set_timestep(&mut self, dt: f64) -> Result<(), SpecError> {
+        let mut spec = self.spec.clone();
+        spec.timestep = dt;
+        spec.check()?;
+        self.spec = spec;
+        Ok(())
+    }
+
+    /// Changes the thermostat (target, time constant or kind) from the next step on.
+    pub fn set_thermostat(&mut self, thermostat: Thermostat) -> Result<(), SpecError> {
+        let mut spec = self.spec.clone();
+        spec.thermostat = thermostat;
+        spec.check()?;
+        self.spec = spec;
+        Ok(())
+    }
+
+    /// Changes cutoff, skin, potential mode and tail correction; forces are recomputed and the
+    /// drift reference moves to the new energy surface.
+    pub fn set_interaction(&mut self, cutoff: f64, skin: f64, potential: PotentialMode, tail_correction: bool) -> Result<(), SpecError> {
+        let mut spec = self.spec.clone();
+        spec.cutoff = cutoff;
+        spec.skin = skin;
+        spec.potential = potential;
+        spec.tail_correction = tail_correction;
+        spec.check()?;
+        self.spec = spec;
+        self.table = self.spec.pair_table();
+        let builds = self.list.builds();
+        self.list = NeighbourList::new(cutoff, skin);
+        self.list.build(&self.system.positions, self.system.box_length);
+        self.list.set_builds(builds + 1);
+        self.update_tails();
+        self.compute_forces();
+        self.rebase_drift();
+        Ok(())
+    }
+
+    /// Rebuilds the neighbour list and recomputes forces at the present positions.
+    pub fn refresh(&mut self) {
+        self.list.build(&self.system.positions, self.system.box_length);
+        self.compute_forces();
+    }
+
+    fn compute_forces(&mut self) {
+        let s = &mut self.system;
+        self.sums = forces::compute(&s.positions, &s.types, s.box_length, &self.table, &self.list, &mut s.forces, &mut self.scratch);
+    }
+
+    /// Advances one timestep.
+    pub fn step(&mut self) -> Result<(), Blowup> {
+        let dt = self.spec.timestep;
+        match self.spec.thermostat {
+            Thermostat::None => self.verlet_step(dt),
+            Thermostat::StochasticRescale { target, tau } => {
+                self.rescale_half(target, tau, 0.5 * dt, 0);
+                self.verlet_step(dt);
+                self.rescale_half(target, tau, 0.5 * dt, 1);
+            }
+            Thermostat::Langevin { target, gamma } => self.baoab_step(dt, target, gamma),
+        }
+        self.step += 1;
+        self.time += dt;
+        self.check_finite()
+    }
+
+    /// Advances `n` steps, stopping at the first blow-up.
+    pub fn run(&mut self, n: u64) -> Result<(), Blowup> {
+        for _ in 0..n {
+            self.step()?;
+        }
+        Ok(())
+    }
+
+    fn verlet_step(&mut self, dt: f64) {
+        self.kick(0.5 * dt);
+        self.drift(dt);
+        self.after_drift();
+        self.kick(0.5 * dt);
+    }
+
+    /// BAOAB: half kick, half drift, exact friction-and-noise step, half drift, forces, half kick.
+    fn baoab_step(&mut self, dt: f64, target: f64, gamma: f64) {
+        self.kick(0.5 * dt);
+        self.drift(0.5 * dt);
+        let before = self.system.kinetic_energy();
+        let c1 = (-gamma * dt).exp();
+        let noise = (1.0 - c1 * c1).sqrt();
+        let (seed, step) = (self.spec.seed, self.step);
+        let s = &mut self.system;
+        let masses = &s.masses;
+        s.velocities.par_iter_mut().zip(s.types.par_iter()).enumerate().with_min_len(1024).for_each(|(i, (v, &t))| {
+            let mut rng = Stream::new(seed, Purpose::Langevin, step, i as u64);
+            let w = noise * (target / masses[t as usize]).sqrt();
+            for x in v.iter_mut() {
+                *x = c1 * *x + w * rng.normal();
+            }
+        });
+        self.heat += self.system.kinetic_energy() - before;
+        self.drift(0.5 * dt);
+        self.after_drift();
+        self.kick(0.5 * dt);
+    }
+
+    fn rescale_half(&mut self, target: f64, tau: f64, dt: f64, half: u64) {
+        let k = self.system.kinetic_energy();
+        if k <= 0.0 {
+            return;
+        }
+        let dof = self.spec.degrees_of_freedom();
+        let mut rng = thermostat::rescale_stream(self.spec.seed, self.step, half);
+        let k_new = thermostat::rescaled_kinetic(k, 0.5 * dof * target, dof, dt, tau, &mut rng).max(0.0);
+        let alpha = (k_new / k).sqrt();
+        self.system.velocities.par_iter_mut().with_min_len(4096).for_each(|v| {
+            for x in v.iter_mut() {
+                *x *= alpha;
+            }
+        });
+        self.heat += k_new - k;
+    }
+
+    fn kick(&mut self, h: f64) {
+        let s = &mut self.system;
+        let masses = &s.masses;
+        s.velocities.par_iter_mut().zip(s.forces.par_iter()).zip(s.types.par_iter()).with_min_len(4096).for_each(|((v, f), &t)| {
+            let a = h / masses[t as usize];
+            v[0] += a * f[0];
+            v[1] += a * f[1];
+            v[2] += a * f[2];
+        });
+    }
+
+    fn drift(&mut self, h: f64) {
+        let s = &mut self.system;
+        s.positions.par_iter_mut().zip(s.velocities.par_iter()).with_min_len(4096).for_each(|(x, v)| {
+            x[0] += h * v[0];
+            x[1] += h * v[1];
+            x[2] += h * v[2];
+        });
+    }
+
+    fn after_drift(&mut self) {
+        if self.list.needs_rebuild(&self.system.positions) {
+            self.list.build(&self.system.positions, self.system.box_length);
+        }
+        self.compute_forces();
+    }
+
+    fn check_finite(&self) -> Result<(), Blowup> {
+        if self.sums.potential.is_finite() && self.sums.virial.is_finite() {
+            return Ok(());
+        }
+        let s = &self.system;
+        let mut atoms: Vec<usize> = (0..s.len())
+            .filter(|&i| !(s.positions[i].iter().chain(&s.velocities[i]).chain(&s.forces[i]).all(|x| x.is_finite())))
+            .take(8)
+            .collect();
+        if atoms.is_empty() {
+            atoms = self.strongest_forces(8);
+        }
+        Err(Blowup { step: self.step, reason: "potential energy or virial is not finite".into(), atoms })
+    }
+
+    /// Indices of the `k` atoms with the largest force magnitude (finite ones first).
+    pub fn strongest_forces(&self, k: usize) -> Vec<usize> {
+        let f = &self.system.forces;
+        let mut idx: Vec<usize> = (0..f.len()).collect();
+        let mag = |i: usize| {
+            let m = f[i][0] * f[i][0] + f[i][1] * f[i][1] + f[i][2] * f[i][2];
+            if m.is_nan() { f64::INFINITY } else { m }
+        };
+        idx.sort_by(|&a, &b| mag(b).total_cmp(&mag(a)));
+        idx.truncate(k);
+        idx
+    }
+
+    /// Largest force magnitude on any atom.
+    pub fn max_force(&self) -> f64 {
+        self.system
+            .forces
+            .par_iter()
+            .map(|f| f[0] * f[0] + f[1] * f[1] + f[2] * f[2])
+            .reduce(|| 0.0, |a, b| if a.is_nan() || b.is_nan() { f64::NAN } else { a.max(b) })
+            .sqrt()
+    }
+
+    /// Measures the present state.
+    pub fn observe(&self) -> Observables {
+        let n = self.system.len() as f64;
+        let k = self.system.kinetic_energy();
+        let u = self.pair_potential_total();
+        let v = self.system.volume();
+        let e = k + u;
+        let conserved = e - self.heat;
+        Observables {
+            step: self.step,
+            time: self.time,
+            kinetic: k / n,
+            potential: u / n,
+            total: e / n,
+            conserved: conserved / n,
+            temperature: 2.0 * k / self.spec.degrees_of_freedom(),
+            pressure: (2.0 * k + self.sums.virial) / (3.0 * v) + self.tail_pressure,
+            drift: (conserved - self.drift_origin) / self.drift_scale,
+        }
+    }
+
+    /// Per-atom kinetic energies into `out` (resized to N), for views colouring by energy.
+    pub fn kinetic_per_atom(&self, out: &mut Vec<f64>) {
+        out.clear();
+        out.extend((0..self.system.len()).map(|i| self.system.kinetic_of(i)));
+    }
+
+    /// Summed pair energy and virial of the last force evaluation (for tests).
+    pub fn force_sums(&self) -> ForceSums {
+        self.sums
+    }
+}
+
+/// Velocity reversal helper for reversibility checks: v → −v for every atom.
+pub fn reverse_velocities(system: &mut System) {
+    for v in &mut system.velocities {
+        for x in v.iter_mut() {
+            *x = -*x;
+        }
+    }
+}
+
+/// Ordered sum over atoms, exposed for analysis code that must match the engine's rounding.
+pub fn ordered_atom_sum<F: Fn(usize) -> f64 + Sync>(n: usize, f: F) -> f64 {
+    ordered_sum(n, f)
+}
