@@ -71,6 +71,9 @@ enum Cmd {
         /// Write the results as JSON here too.
         #[arg(long)]
         json: Option<PathBuf>,
+        /// Also time the neighbour-list build and the force loop alone.
+        #[arg(long)]
+        stages: bool,
     },
 }
 
@@ -143,8 +146,17 @@ fn run_headless(cmd: Cmd) -> Result<(), RunError> {
             report(&summary, &out, quiet);
             Ok(())
         }
-        Cmd::Bench { atoms, steps, warmup, threads, json } => {
+        Cmd::Bench { atoms, steps, warmup, threads, json, stages } => {
             set_threads(threads)?;
+            if stages {
+                for &a in &atoms {
+                    let s = bench::measure_stages(a, 10);
+                    println!(
+                        "stages at {} atoms: list build {:.2} ms ({:.1} ns/atom), forces {:.2} ms ({:.1} ns/atom, {:.1} pairs/atom)",
+                        s.atoms, s.build_seconds * 1e3, s.build_seconds * 1e9 / a as f64, s.force_seconds * 1e3, s.force_seconds * 1e9 / a as f64, s.pairs_per_atom
+                    );
+                }
+            }
             let mut sorted = atoms.clone();
             sorted.sort_unstable();
             if let Some(&a) = sorted.iter().find(|&&a| !(500..=4_000_000).contains(&a)) {

@@ -10,21 +10,28 @@
 use super::parallel::SharedMut;
 use rayon::prelude::*;
 
+/// Atoms per storage chunk of the list; each chunk is built by one task, in one pass.
+const CHUNK_SHIFT: usize = 10;
+const CHUNK: usize = 1 << CHUNK_SHIFT;
+
 /// Half neighbour list with its build positions and slab schedule.
 #[derive(Clone, Debug, Default)]
 pub struct NeighbourList {
     reach: f64,
     skin: f64,
-    /// `list[starts[i]..starts[i+1]]` are the partners owned by atom i.
-    starts: Vec<u32>,
-    list: Vec<u32>,
+    /// Partner lists of atoms [k·CHUNK, (k+1)·CHUNK), concatenated.
+    chunks: Vec<Vec<u32>>,
+    /// End of atom i's partners within its chunk's list.
+    ends: Vec<u32>,
     /// Positions at the last build, for the half-skin rebuild rule.
     reference: Vec<[f64; 3]>,
     slab_starts: Vec<u32>,
     slab_atoms: Vec<u32>,
-    /// Cell-sort scratch, kept between builds.
+    /// Cell-sort scratch kept between builds: atoms by cell, and their folded positions in
+    /// single precision (the list search only needs to be conservative, see `build`).
     cell_starts: Vec<u32>,
     cell_atoms: Vec<u32>,
+    cell_pos: Vec<[f32; 3]>,
     builds: u64,
 }
 
@@ -52,9 +59,13 @@ pub fn separation(a: &[f64; 3], b: &[f64; 3], l: f64, inv_l: f64) -> ([f64; 3], 
 }
 
 #[inline]
+fn fold(x: f64, l: f64) -> f64 {
+    x - l * (x / l).floor()
+}
+
+#[inline]
 fn cell_index(x: f64, l: f64, n: usize) -> usize {
-    let w = x - l * (x / l).floor();
-    ((w / l * n as f64) as isize).clamp(0, n as isize - 1) as usize
+    ((fold(x, l) / l * n as f64) as isize).clamp(0, n as isize - 1) as usize
 }
 
 impl NeighbourList {
@@ -90,13 +101,15 @@ impl NeighbourList {
 
     /// Number of stored pairs.
     pub fn pairs(&self) -> usize {
-        self.list.len()
+        self.chunks.iter().map(|c| c.len()).sum()
     }
 
-    /// Partners owned by atom `i`.
+    /// Partners owned by atom `i`. Every pair closer than r_c + skin at the last build is owned
+    /// by exactly one of its two atoms; a few pairs slightly beyond may be listed too.
     #[inline(always)]
     pub fn partners(&self, i: usize) -> &[u32] {
-        &self.list[self.starts[i] as usize..self.starts[i + 1] as usize]
+        let lo = if i & (CHUNK - 1) == 0 { 0 } else { self.ends[i - 1] as usize };
+        &self.chunks[i >> CHUNK_SHIFT][lo..self.ends[i] as usize]
     }
 
     /// Number of slabs in the force schedule (1, or a multiple of 3).
@@ -112,8 +125,9 @@ impl NeighbourList {
 
     /// Bytes held by the list and its scratch (for memory accounting).
     pub fn heap_bytes(&self) -> usize {
-        4 * (self.starts.capacity() + self.list.capacity() + self.slab_starts.capacity()
+        4 * (self.chunks.iter().map(|c| c.capacity()).sum::<usize>() + self.ends.capacity() + self.slab_starts.capacity()
             + self.slab_atoms.capacity() + self.cell_starts.capacity() + self.cell_atoms.capacity())
+            + 12 * self.cell_pos.capacity()
             + 24 * self.reference.capacity()
     }
 
@@ -131,8 +145,10 @@ impl NeighbourList {
 
     /// Rebuilds the list from `positions` in a periodic cube of edge `box_length`.
     ///
-    /// The result depends only on the positions, never on the thread count. All positions must be
-    /// finite; the caller checks that first.
+    /// With three or more cells per edge the search runs over a cell list in single precision
+    /// with a margin of 1e-4 σ on the reach, so it may list a pair a hair beyond r_c + skin but
+    /// never misses one within it; the force loop tests r_c in double precision. The result
+    /// depends only on the positions, never on the thread count.
     pub fn build(&mut self, positions: &[[f64; 3]], box_length: f64) {
         let n = positions.len();
         let l = box_length;
@@ -140,110 +156,121 @@ impl NeighbourList {
         self.reference.extend_from_slice(positions);
         self.builds += 1;
         let cells = (l / self.reach).floor() as usize;
-        let reach2 = self.reach * self.reach;
-        let inv_l = 1.0 / l;
-
-        // Pass 1: count partners per atom; pass 2: fill. Two passes keep the list exactly sized.
-        self.starts.clear();
-        self.starts.resize(n + 1, 0);
         if cells >= 3 {
             self.sort_into_cells(positions, l, cells);
         }
-        let this = &*self;
-        let counts: Vec<u32> = (0..n)
-            .into_par_iter()
-            .with_min_len(256)
-            .map(|i| {
-                let mut c = 0u32;
-                this.for_each_partner(positions, l, inv_l, reach2, cells, i, |_| c += 1);
-                c
-            })
-            .collect();
-        let mut total = 0u32;
-        for i in 0..n {
-            self.starts[i] = total;
-            total += counts[i];
-        }
-        self.starts[n] = total;
-        drop(counts);
-        let total = total as usize;
-        if self.list.capacity() < total {
-            self.list.reserve_exact(total - self.list.len());
-        }
-        self.list.resize(total, 0);
-        let out = SharedMut(self.list.as_mut_ptr());
-        let this = &*self;
-        (0..n).into_par_iter().with_min_len(256).for_each(|i| {
-            let mut k = this.starts[i] as usize;
-            this.for_each_partner(positions, l, inv_l, reach2, cells, i, |j| {
-                // SAFETY: atom i alone writes its own range starts[i]..starts[i+1].
-                unsafe { *out.at(k) = j };
-                k += 1;
-            });
+        self.ends.clear();
+        self.ends.resize(n, 0);
+        let chunk_count = n.div_ceil(CHUNK);
+        self.chunks.resize_with(chunk_count, Vec::new);
+        self.chunks.truncate(chunk_count);
+        let ends = SharedMut(self.ends.as_mut_ptr());
+        let (cell_starts, cell_atoms, cell_pos) = (&self.cell_starts, &self.cell_atoms, &self.cell_pos);
+        let reach = self.reach;
+        self.chunks.par_iter_mut().enumerate().for_each(|(k, list)| {
+            let expected = list.len() + list.len() / 16 + 64;
+            list.clear();
+            if list.capacity() < expected {
+                list.reserve_exact(expected);
+            }
+            for i in k * CHUNK..((k + 1) * CHUNK).min(n) {
+                if cells >= 3 {
+                    cell_partners(positions, l, cells, reach, cell_starts, cell_atoms, cell_pos, i, list);
+                } else {
+                    brute_partners(positions, l, reach, i, list);
+                }
+                // SAFETY: chunk k alone writes the ends of its own atoms.
+                unsafe { *ends.at(i) = list.len() as u32 };
+            }
         });
         self.build_slabs(positions, l);
     }
 
-    /// Calls `f(j)` for every partner j owned by atom i, in a fixed order.
-    #[inline]
-    #[allow(clippy::too_many_arguments)]
-    fn for_each_partner<F: FnMut(u32)>(
-        &self,
-        pos: &[[f64; 3]],
-        l: f64,
-        inv_l: f64,
-        reach2: f64,
-        cells: usize,
-        i: usize,
-        mut f: F,
-    ) {
-        let pi = &pos[i];
-        if cells < 3 {
-            for (j, pj) in pos.iter().enumerate().skip(i + 1) {
-                if separation(pi, pj, l, inv_l).1 < reach2 {
-                    f(j as u32);
-                }
-            }
-            return;
-        }
-        let c = [cell_index(pi[0], l, cells), cell_index(pi[1], l, cells), cell_index(pi[2], l, cells)];
-        let own = (c[0] * cells + c[1]) * cells + c[2];
-        // Same cell: partners listed after i (cells keep ascending atom order).
-        for &j in self.cell(own) {
-            if j as usize > i && separation(pi, &pos[j as usize], l, inv_l).1 < reach2 {
-                f(j);
-            }
-        }
-        let nc = cells as i32;
-        for off in &HALF_SHELL {
-            let x = (c[0] as i32 + off[0]).rem_euclid(nc) as usize;
-            let y = (c[1] as i32 + off[1]).rem_euclid(nc) as usize;
-            let z = (c[2] as i32 + off[2]).rem_euclid(nc) as usize;
-            for &j in self.cell((x * cells + y) * cells + z) {
-                if separation(pi, &pos[j as usize], l, inv_l).1 < reach2 {
-                    f(j);
-                }
-            }
-        }
-    }
-
-    #[inline]
-    fn cell(&self, c: usize) -> &[u32] {
-        &self.cell_atoms[self.cell_starts[c] as usize..self.cell_starts[c + 1] as usize]
-    }
-
-    /// Counting sort of atom indices by cell (stable: ascending within each cell).
+    /// Counting sort of atom indices by cell (stable: ascending within each cell), with the
+    /// folded positions stored alongside in cell order.
     fn sort_into_cells(&mut self, pos: &[[f64; 3]], l: f64, cells: usize) {
         let cell_of = |p: &[f64; 3]| {
             (cell_index(p[0], l, cells) * cells + cell_index(p[1], l, cells)) * cells + cell_index(p[2], l, cells)
         };
         counting_sort(pos.len(), cells * cells * cells, |i| cell_of(&pos[i]), &mut self.cell_starts, &mut self.cell_atoms);
+        self.cell_pos.clear();
+        self.cell_pos.extend(self.cell_atoms.iter().map(|&j| {
+            let p = pos[j as usize];
+            [fold(p[0], l) as f32, fold(p[1], l) as f32, fold(p[2], l) as f32]
+        }));
     }
 
     fn build_slabs(&mut self, pos: &[[f64; 3]], l: f64) {
         let fit = (l / self.reach).floor() as usize;
         let slabs = if fit >= 3 { fit - fit % 3 } else { 1 };
         counting_sort(pos.len(), slabs, |i| cell_index(pos[i][2], l, slabs), &mut self.slab_starts, &mut self.slab_atoms);
+    }
+}
+
+/// Appends the partners owned by atom i, all-pairs search (boxes under three cells per edge).
+fn brute_partners(pos: &[[f64; 3]], l: f64, reach: f64, i: usize, list: &mut Vec<u32>) {
+    let reach2 = reach * reach;
+    let inv_l = 1.0 / l;
+    let pi = &pos[i];
+    for (j, pj) in pos.iter().enumerate().skip(i + 1) {
+        if separation(pi, pj, l, inv_l).1 < reach2 {
+            list.push(j as u32);
+        }
+    }
+}
+
+/// Appends the partners owned by atom i from the cell list: later atoms of its own cell, then
+/// the 13 forward cells of the half shell, each with its periodic shift applied once per cell.
+#[allow(clippy::too_many_arguments)]
+#[inline]
+fn cell_partners(
+    pos: &[[f64; 3]],
+    l: f64,
+    cells: usize,
+    reach: f64,
+    cell_starts: &[u32],
+    cell_atoms: &[u32],
+    cell_pos: &[[f32; 3]],
+    i: usize,
+    list: &mut Vec<u32>,
+) {
+    // Margin for single-precision rounding of coordinates up to the box edge.
+    let reach = reach + 1e-4 + l * 1e-6;
+    let reach2 = (reach * reach) as f32;
+    let p = pos[i];
+    let c = [cell_index(p[0], l, cells), cell_index(p[1], l, cells), cell_index(p[2], l, cells)];
+    let own = (c[0] * cells + c[1]) * cells + c[2];
+    let (lo, hi) = (cell_starts[own] as usize, cell_starts[own + 1] as usize);
+    let slot = lo + cell_atoms[lo..hi].iter().position(|&a| a as usize == i).expect("atom is in its own cell");
+    let pi = cell_pos[slot];
+    for k in slot + 1..hi {
+        let q = cell_pos[k];
+        let d = [pi[0] - q[0], pi[1] - q[1], pi[2] - q[2]];
+        if d[0] * d[0] + d[1] * d[1] + d[2] * d[2] < reach2 {
+            list.push(cell_atoms[k]);
+        }
+    }
+    let nc = cells as i32;
+    let lf = l as f32;
+    for off in &HALF_SHELL {
+        let mut shift = [0f32; 3];
+        let mut idx = [0usize; 3];
+        for a in 0..3 {
+            let x = c[a] as i32 + off[a];
+            // A neighbour cell across a face: its atoms are seen one box edge away.
+            shift[a] = if x >= nc { lf } else if x < 0 { -lf } else { 0.0 };
+            idx[a] = x.rem_euclid(nc) as usize;
+        }
+        let cell = (idx[0] * cells + idx[1]) * cells + idx[2];
+        let (lo, hi) = (cell_starts[cell] as usize, cell_starts[cell + 1] as usize);
+        let q0 = [pi[0] - shift[0], pi[1] - shift[1], pi[2] - shift[2]];
+        for k in lo..hi {
+            let q = cell_pos[k];
+            let d = [q0[0] - q[0], q0[1] - q[1], q0[2] - q[2]];
+            if d[0] * d[0] + d[1] * d[1] + d[2] * d[2] < reach2 {
+                list.push(cell_atoms[k]);
+            }
+        }
     }
 }
 

@@ -372,6 +372,16 @@ impl Simulation {
         self.compute_forces();
     }
 
+    /// Rebuilds only the neighbour list (benchmarking a stage alone).
+    pub fn refresh_list_only(&mut self) {
+        self.list.build(&self.system.positions, self.system.box_length);
+    }
+
+    /// Recomputes only the forces (benchmarking a stage alone).
+    pub fn refresh_forces_only(&mut self) {
+        self.compute_forces();
+    }
+
     fn compute_forces(&mut self) {
         let s = &mut self.system;
         self.sums = forces::compute(&s.positions, &s.types, s.box_length, &self.table, &self.list, &mut s.forces, &mut self.scratch);
