@@ -532,6 +532,7 @@ impl Simulation {
         let v = self.system.volume();
         let e = k + u;
         let conserved = e - self.heat;
+        let temperature = 2.0 * k / self.spec.degrees_of_freedom();
         Observables {
             step: self.step,
             time: self.time,
@@ -539,8 +540,10 @@ impl Simulation {
             potential: u / n,
             total: e / n,
             conserved: conserved / n,
-            temperature: 2.0 * k / self.spec.degrees_of_freedom(),
-            pressure: (2.0 * k + self.sums.virial) / (3.0 * v) + self.tail_pressure,
+            temperature,
+            // P = (N k_B T + W/3) / V with the kinetic temperature T = 2K/dof: unbiased for
+            // the canonical pressure also when total momentum is fixed (dof = 3N − 3).
+            pressure: (n * temperature + self.sums.virial / 3.0) / v + self.tail_pressure,
             drift: (conserved - self.drift_origin) / self.drift_scale,
         }
     }
