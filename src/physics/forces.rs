@@ -120,14 +120,9 @@ impl Ctx<'_> {
                 // Gather: minimum-image separations (and pair parameters for mixtures).
                 for (k, &j) in block.iter().enumerate() {
                     let pj = self.positions[j as usize];
-                    let mut d = [pi[0] - pj[0], pi[1] - pj[1], pi[2] - pj[2]];
-                    for x in d.iter_mut() {
-                        *x -= l * nearest_integer(*x * inv_l);
-                    }
-                    b.dx[k] = d[0];
-                    b.dy[k] = d[1];
-                    b.dz[k] = d[2];
-                    b.r2[k] = d[0] * d[0] + d[1] * d[1] + d[2] * d[2];
+                    b.dx[k] = pi[0] - pj[0];
+                    b.dy[k] = pi[1] - pj[1];
+                    b.dz[k] = pi[2] - pj[2];
                     if MIXED {
                         let p = self.table.pair(ti, self.types[j as usize] as usize);
                         b.eps4[k] = p.eps4();
@@ -138,7 +133,15 @@ impl Ctx<'_> {
                 }
                 // Compute: branch-free over the block; pairs beyond r_c contribute zero.
                 for k in 0..m {
-                    let r2 = b.r2[k];
+                    // Minimum image, here where the compiler can vectorise it.
+                    let dx = b.dx[k] - l * nearest_integer(b.dx[k] * inv_l);
+                    let dy = b.dy[k] - l * nearest_integer(b.dy[k] * inv_l);
+                    let dz = b.dz[k] - l * nearest_integer(b.dz[k] * inv_l);
+                    b.dx[k] = dx;
+                    b.dy[k] = dy;
+                    b.dz[k] = dz;
+                    let r2 = dx * dx + dy * dy + dz * dz;
+                    b.r2[k] = r2;
                     let inside = r2 < rc2;
                     let r2s = if inside { r2 } else { 1.0 };
                     let inv_r2 = 1.0 / r2s;

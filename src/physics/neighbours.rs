@@ -31,8 +31,28 @@ pub struct NeighbourList {
     /// single precision (the list search only needs to be conservative, see `build`).
     cell_starts: Vec<u32>,
     cell_atoms: Vec<u32>,
-    cell_pos: Vec<[f32; 3]>,
+    cell_pos: CellPositions,
+    /// For each cell, its 13 half-shell neighbour cells and the periodic shift to apply.
+    shell: Vec<ShellCell>,
+    shell_cells: usize,
+    shell_box: f64,
     builds: u64,
+}
+
+/// Folded positions in cell order, single precision, one array per axis (so the distance
+/// test over a cell vectorises).
+#[derive(Clone, Debug, Default)]
+struct CellPositions {
+    x: Vec<f32>,
+    y: Vec<f32>,
+    z: Vec<f32>,
+}
+
+/// One half-shell neighbour of a cell: its index and the box-edge shift of its image.
+#[derive(Clone, Copy, Debug, Default)]
+struct ShellCell {
+    cell: u32,
+    shift: [f32; 3],
 }
 
 /// The 13 forward cell offsets of the half shell (the other 13 are their negatives).
@@ -127,7 +147,7 @@ impl NeighbourList {
     pub fn heap_bytes(&self) -> usize {
         4 * (self.chunks.iter().map(|c| c.capacity()).sum::<usize>() + self.ends.capacity() + self.slab_starts.capacity()
             + self.slab_atoms.capacity() + self.cell_starts.capacity() + self.cell_atoms.capacity())
-            + 12 * self.cell_pos.capacity()
+            + 4 * (self.cell_pos.x.capacity() + self.cell_pos.y.capacity() + self.cell_pos.z.capacity())
             + 24 * self.reference.capacity()
     }
 
@@ -158,6 +178,7 @@ impl NeighbourList {
         let cells = (l / self.reach).floor() as usize;
         if cells >= 3 {
             self.sort_into_cells(positions, l, cells);
+            self.build_shell(cells, l);
         }
         self.ends.clear();
         self.ends.resize(n, 0);
@@ -165,8 +186,7 @@ impl NeighbourList {
         self.chunks.resize_with(chunk_count, Vec::new);
         self.chunks.truncate(chunk_count);
         let ends = SharedMut(self.ends.as_mut_ptr());
-        let (cell_starts, cell_atoms, cell_pos) = (&self.cell_starts, &self.cell_atoms, &self.cell_pos);
-        let reach = self.reach;
+        let grid = Grid { l, cells, reach: self.reach, starts: &self.cell_starts, atoms: &self.cell_atoms, pos: &self.cell_pos, shell: &self.shell };
         self.chunks.par_iter_mut().enumerate().for_each(|(k, list)| {
             let expected = list.len() + list.len() / 16 + 64;
             list.clear();
@@ -175,9 +195,9 @@ impl NeighbourList {
             }
             for i in k * CHUNK..((k + 1) * CHUNK).min(n) {
                 if cells >= 3 {
-                    cell_partners(positions, l, cells, reach, cell_starts, cell_atoms, cell_pos, i, list);
+                    grid.partners(positions, i, list);
                 } else {
-                    brute_partners(positions, l, reach, i, list);
+                    brute_partners(positions, l, grid.reach, i, list);
                 }
                 // SAFETY: chunk k alone writes the ends of its own atoms.
                 unsafe { *ends.at(i) = list.len() as u32 };
@@ -193,11 +213,43 @@ impl NeighbourList {
             (cell_index(p[0], l, cells) * cells + cell_index(p[1], l, cells)) * cells + cell_index(p[2], l, cells)
         };
         counting_sort(pos.len(), cells * cells * cells, |i| cell_of(&pos[i]), &mut self.cell_starts, &mut self.cell_atoms);
-        self.cell_pos.clear();
-        self.cell_pos.extend(self.cell_atoms.iter().map(|&j| {
+        let cp = &mut self.cell_pos;
+        for v in [&mut cp.x, &mut cp.y, &mut cp.z] {
+            v.clear();
+        }
+        for &j in &self.cell_atoms {
             let p = pos[j as usize];
-            [fold(p[0], l) as f32, fold(p[1], l) as f32, fold(p[2], l) as f32]
-        }));
+            cp.x.push(fold(p[0], l) as f32);
+            cp.y.push(fold(p[1], l) as f32);
+            cp.z.push(fold(p[2], l) as f32);
+        }
+    }
+
+    /// Fills the half-shell neighbour table of every cell (once per box and cell count).
+    fn build_shell(&mut self, cells: usize, l: f64) {
+        let total = cells * cells * cells;
+        if self.shell_cells == total && self.shell.len() == 13 * total && self.shell_box == l {
+            return;
+        }
+        self.shell.clear();
+        let nc = cells as i32;
+        let lf = l as f32;
+        for c in 0..total {
+            let here = [(c / (cells * cells)) as i32, ((c / cells) % cells) as i32, (c % cells) as i32];
+            for off in &HALF_SHELL {
+                let mut shift = [0f32; 3];
+                let mut idx = [0usize; 3];
+                for a in 0..3 {
+                    let x = here[a] + off[a];
+                    // A neighbour across a face: its atoms are seen one box edge away.
+                    shift[a] = if x >= nc { lf } else if x < 0 { -lf } else { 0.0 };
+                    idx[a] = x.rem_euclid(nc) as usize;
+                }
+                self.shell.push(ShellCell { cell: ((idx[0] * cells + idx[1]) * cells + idx[2]) as u32, shift });
+            }
+        }
+        self.shell_cells = total;
+        self.shell_box = l;
     }
 
     fn build_slabs(&mut self, pos: &[[f64; 3]], l: f64) {
@@ -214,64 +266,87 @@ fn brute_partners(pos: &[[f64; 3]], l: f64, reach: f64, i: usize, list: &mut Vec
     let pi = &pos[i];
     for (j, pj) in pos.iter().enumerate().skip(i + 1) {
         if separation(pi, pj, l, inv_l).1 < reach2 {
-            list.push(j as u32);
+            push_tight(list, j as u32);
         }
     }
 }
 
-/// Appends the partners owned by atom i from the cell list: later atoms of its own cell, then
-/// the 13 forward cells of the half shell, each with its periodic shift applied once per cell.
-#[allow(clippy::too_many_arguments)]
-#[inline]
-fn cell_partners(
-    pos: &[[f64; 3]],
+/// The cell list as the search sees it.
+struct Grid<'a> {
     l: f64,
     cells: usize,
     reach: f64,
-    cell_starts: &[u32],
-    cell_atoms: &[u32],
-    cell_pos: &[[f32; 3]],
-    i: usize,
-    list: &mut Vec<u32>,
-) {
-    // Margin for single-precision rounding of coordinates up to the box edge.
-    let reach = reach + 1e-4 + l * 1e-6;
-    let reach2 = (reach * reach) as f32;
-    let p = pos[i];
-    let c = [cell_index(p[0], l, cells), cell_index(p[1], l, cells), cell_index(p[2], l, cells)];
-    let own = (c[0] * cells + c[1]) * cells + c[2];
-    let (lo, hi) = (cell_starts[own] as usize, cell_starts[own + 1] as usize);
-    let slot = lo + cell_atoms[lo..hi].iter().position(|&a| a as usize == i).expect("atom is in its own cell");
-    let pi = cell_pos[slot];
-    for k in slot + 1..hi {
-        let q = cell_pos[k];
-        let d = [pi[0] - q[0], pi[1] - q[1], pi[2] - q[2]];
-        if d[0] * d[0] + d[1] * d[1] + d[2] * d[2] < reach2 {
-            list.push(cell_atoms[k]);
+    starts: &'a [u32],
+    atoms: &'a [u32],
+    pos: &'a CellPositions,
+    shell: &'a [ShellCell],
+}
+
+impl Grid<'_> {
+    /// Appends the partners owned by atom i: later atoms of its own cell, then the atoms of the
+    /// 13 forward cells of the half shell, each cell's periodic shift applied once.
+    #[inline]
+    fn partners(&self, pos: &[[f64; 3]], i: usize, list: &mut Vec<u32>) {
+        // Margin for single-precision rounding of coordinates up to the box edge.
+        let reach = self.reach + 1e-4 + self.l * 1e-6;
+        let reach2 = (reach * reach) as f32;
+        let (l, cells) = (self.l, self.cells);
+        let p = pos[i];
+        let own = (cell_index(p[0], l, cells) * cells + cell_index(p[1], l, cells)) * cells + cell_index(p[2], l, cells);
+        let (lo, hi) = (self.starts[own] as usize, self.starts[own + 1] as usize);
+        let slot = lo + self.atoms[lo..hi].iter().position(|&a| a as usize == i).expect("atom is in its own cell");
+        let pi = [self.pos.x[slot], self.pos.y[slot], self.pos.z[slot]];
+        self.scan(pi, slot + 1, hi, reach2, list);
+        for sc in &self.shell[13 * own..13 * own + 13] {
+            let c = sc.cell as usize;
+            let q = [pi[0] - sc.shift[0], pi[1] - sc.shift[1], pi[2] - sc.shift[2]];
+            self.scan(q, self.starts[c] as usize, self.starts[c + 1] as usize, reach2, list);
         }
     }
-    let nc = cells as i32;
-    let lf = l as f32;
-    for off in &HALF_SHELL {
-        let mut shift = [0f32; 3];
-        let mut idx = [0usize; 3];
-        for a in 0..3 {
-            let x = c[a] as i32 + off[a];
-            // A neighbour cell across a face: its atoms are seen one box edge away.
-            shift[a] = if x >= nc { lf } else if x < 0 { -lf } else { 0.0 };
-            idx[a] = x.rem_euclid(nc) as usize;
-        }
-        let cell = (idx[0] * cells + idx[1]) * cells + idx[2];
-        let (lo, hi) = (cell_starts[cell] as usize, cell_starts[cell + 1] as usize);
-        let q0 = [pi[0] - shift[0], pi[1] - shift[1], pi[2] - shift[2]];
-        for k in lo..hi {
-            let q = cell_pos[k];
-            let d = [q0[0] - q[0], q0[1] - q[1], q0[2] - q[2]];
-            if d[0] * d[0] + d[1] * d[1] + d[2] * d[2] < reach2 {
-                list.push(cell_atoms[k]);
+
+    /// Appends the atoms in cell slots lo..hi that lie within √reach2 of `p`: distances for the
+    /// whole cell first (a loop the compiler vectorises), then a branch-free compaction.
+    #[inline(always)]
+    fn scan(&self, p: [f32; 3], lo: usize, hi: usize, reach2: f32, list: &mut Vec<u32>) {
+        const MAX: usize = 64;
+        let mut start = lo;
+        while start < hi {
+            let end = (start + MAX).min(hi);
+            let m = end - start;
+            let (xs, ys, zs) = (&self.pos.x[start..end], &self.pos.y[start..end], &self.pos.z[start..end]);
+            let mut inside = [0u32; MAX];
+            for k in 0..m {
+                let (dx, dy, dz) = (p[0] - xs[k], p[1] - ys[k], p[2] - zs[k]);
+                inside[k] = (dx * dx + dy * dy + dz * dz < reach2) as u32;
             }
+            if list.capacity() - list.len() < m {
+                list.reserve_exact((list.len() / 8).max(m) + 64);
+            }
+            let atoms = &self.atoms[start..end];
+            let base = list.len();
+            // SAFETY: capacity for m more entries was reserved above; every slot written below
+            // base + m, and the length only covers slots that were written.
+            unsafe {
+                let out = list.as_mut_ptr().add(base);
+                let mut n = 0usize;
+                for k in 0..m {
+                    *out.add(n) = atoms[k];
+                    n += inside[k] as usize;
+                }
+                list.set_len(base + n);
+            }
+            start = end;
         }
     }
+}
+
+/// Pushes with growth of one eighth instead of doubling, to keep the list near its true size.
+#[inline(always)]
+fn push_tight(list: &mut Vec<u32>, a: u32) {
+    if list.len() == list.capacity() {
+        list.reserve_exact(list.len() / 8 + 64);
+    }
+    list.push(a);
 }
 
 /// Stable counting sort of 0..n into `bins` by `key`, written as CSR (`starts`, `items`).
