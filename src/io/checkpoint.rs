@@ -104,13 +104,13 @@ impl Checkpoint {
         let mut at = MAGIC.len();
         let hlen = u64::from_le_bytes(body[at..at + 8].try_into().unwrap()) as usize;
         at += 8;
-        if at + hlen > body.len() {
+        if hlen > body.len() - at {
             return Err(bad("header length beyond the end"));
         }
         let header: Header = serde_json::from_slice(&body[at..at + hlen]).map_err(|e| bad(&e.to_string()))?;
         at += hlen;
         let n = header.atoms;
-        if body.len() - at != n + 3 * 24 * n {
+        if n.checked_mul(73) != Some(body.len() - at) {
             return Err(bad("array sizes do not match the atom count"));
         }
         let types = body[at..at + n].to_vec();
