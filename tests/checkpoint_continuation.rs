@@ -277,8 +277,8 @@ fn fnv1a(bytes: &[u8]) -> u64 {
 #[test]
 fn checksum_valid_checkpoint_with_absurd_header_length_is_an_error_not_a_panic() {
     let good = small_checkpoint(1).to_bytes();
-    let magic_len = b"NOBLESCOPE-STATE 1\n".len();
-    assert_eq!(&good[..magic_len], b"NOBLESCOPE-STATE 1\n");
+    let magic_len = b"NOBLESCOPE-STATE 2\n".len();
+    assert_eq!(&good[..magic_len], b"NOBLESCOPE-STATE 2\n");
     for hlen in [u64::MAX - 5, u64::MAX, (good.len() as u64) * 2, 0] {
         let mut b = good[..good.len() - 8].to_vec();
         b[magic_len..magic_len + 8].copy_from_slice(&hlen.to_le_bytes());

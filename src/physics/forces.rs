@@ -91,8 +91,27 @@ struct Block {
 }
 
 impl Ctx<'_> {
+    /// One slab, with the widest vector instructions the processor has. Rust never fuses a
+    /// multiply and an add on its own, so the AVX2 and baseline versions round identically:
+    /// results do not depend on the processor either.
     #[inline(never)]
     fn slab<const SHIFTED_FORCE: bool, const MIXED: bool>(&self, s: usize) -> ForceSums {
+        #[cfg(target_arch = "x86_64")]
+        if std::arch::is_x86_feature_detected!("avx2") {
+            // SAFETY: the processor supports AVX2, checked just above.
+            return unsafe { self.slab_avx2::<SHIFTED_FORCE, MIXED>(s) };
+        }
+        self.slab_body::<SHIFTED_FORCE, MIXED>(s)
+    }
+
+    #[cfg(target_arch = "x86_64")]
+    #[target_feature(enable = "avx2")]
+    unsafe fn slab_avx2<const SHIFTED_FORCE: bool, const MIXED: bool>(&self, s: usize) -> ForceSums {
+        self.slab_body::<SHIFTED_FORCE, MIXED>(s)
+    }
+
+    #[inline(always)]
+    fn slab_body<const SHIFTED_FORCE: bool, const MIXED: bool>(&self, s: usize) -> ForceSums {
         let rc2 = self.table.cutoff2();
         let rc = self.table.cutoff();
         let (l, inv_l) = (self.l, self.inv_l);

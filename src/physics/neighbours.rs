@@ -23,8 +23,10 @@ pub struct NeighbourList {
     chunks: Vec<Vec<u32>>,
     /// End of atom i's partners within its chunk's list.
     ends: Vec<u32>,
-    /// Positions at the last build, for the half-skin rebuild rule.
-    reference: Vec<[f64; 3]>,
+    /// Positions at the last build, folded into the box and rounded to single precision. The
+    /// whole list is a function of these alone, so a checkpoint that stores them rebuilds the
+    /// identical list; they also serve the half-skin rebuild rule.
+    reference: Vec<[f32; 3]>,
     slab_starts: Vec<u32>,
     slab_atoms: Vec<u32>,
     /// Cell-sort scratch kept between builds: atoms by cell, and their folded positions in
@@ -36,6 +38,7 @@ pub struct NeighbourList {
     shell: Vec<ShellCell>,
     shell_cells: usize,
     shell_box: f64,
+    box_length: f64,
     builds: u64,
 }
 
@@ -83,9 +86,22 @@ fn fold(x: f64, l: f64) -> f64 {
     x - l * (x / l).floor()
 }
 
+/// Bin of a folded coordinate among `n` equal bins of [0, l).
 #[inline]
-fn cell_index(x: f64, l: f64, n: usize) -> usize {
-    ((fold(x, l) / l * n as f64) as isize).clamp(0, n as isize - 1) as usize
+fn bin(x: f32, l: f64, n: usize) -> usize {
+    ((x as f64 / l * n as f64) as isize).clamp(0, n as isize - 1) as usize
+}
+
+/// Cell of a folded position.
+#[inline]
+fn cell_of(p: &[f32; 3], l: f64, cells: usize) -> usize {
+    (bin(p[0], l, cells) * cells + bin(p[1], l, cells)) * cells + bin(p[2], l, cells)
+}
+
+/// Extra reach that covers single-precision rounding of coordinates up to the box edge.
+#[inline]
+fn margin(l: f64) -> f64 {
+    1e-4 + l * 1e-6
 }
 
 impl NeighbourList {
@@ -114,8 +130,8 @@ impl NeighbourList {
         self.builds = builds;
     }
 
-    /// Positions at the last build.
-    pub fn reference(&self) -> &[[f64; 3]] {
+    /// Folded single-precision positions at the last build.
+    pub fn reference(&self) -> &[[f32; 3]] {
         &self.reference
     }
 
@@ -148,7 +164,7 @@ impl NeighbourList {
         4 * (self.chunks.iter().map(|c| c.capacity()).sum::<usize>() + self.ends.capacity() + self.slab_starts.capacity()
             + self.slab_atoms.capacity() + self.cell_starts.capacity() + self.cell_atoms.capacity())
             + 4 * (self.cell_pos.x.capacity() + self.cell_pos.y.capacity() + self.cell_pos.z.capacity())
-            + 24 * self.reference.capacity()
+            + 12 * self.reference.capacity()
     }
 
     /// Whether some atom moved more than half the skin since the last build.
@@ -157,9 +173,11 @@ impl NeighbourList {
             return true;
         }
         let limit = 0.25 * self.skin * self.skin;
+        let (l, inv_l) = (self.box_length, 1.0 / self.box_length);
         positions.par_iter().zip(self.reference.par_iter()).with_min_len(1024).any(|(p, r)| {
-            let d = [p[0] - r[0], p[1] - r[1], p[2] - r[2]];
-            d[0] * d[0] + d[1] * d[1] + d[2] * d[2] > limit
+            let r = [r[0] as f64, r[1] as f64, r[2] as f64];
+            // Not finite (a blown-up run) also counts as moved.
+            !(separation(p, &r, l, inv_l).1 <= limit)
         })
     }
 
@@ -170,14 +188,26 @@ impl NeighbourList {
     /// never misses one within it; the force loop tests r_c in double precision. The result
     /// depends only on the positions, never on the thread count.
     pub fn build(&mut self, positions: &[[f64; 3]], box_length: f64) {
-        let n = positions.len();
         let l = box_length;
         self.reference.clear();
-        self.reference.extend_from_slice(positions);
+        self.reference.par_extend(positions.par_iter().map(|p| [fold(p[0], l) as f32, fold(p[1], l) as f32, fold(p[2], l) as f32]));
+        self.build_from_reference(l);
+    }
+
+    /// Rebuilds the list from saved folded reference positions (see [`NeighbourList::reference`]).
+    pub fn build_from(&mut self, reference: &[[f32; 3]], box_length: f64) {
+        self.reference.clear();
+        self.reference.extend_from_slice(reference);
+        self.build_from_reference(box_length);
+    }
+
+    fn build_from_reference(&mut self, l: f64) {
+        let n = self.reference.len();
+        self.box_length = l;
         self.builds += 1;
         let cells = (l / self.reach).floor() as usize;
         if cells >= 3 {
-            self.sort_into_cells(positions, l, cells);
+            self.sort_into_cells(l, cells);
             self.build_shell(cells, l);
         }
         self.ends.clear();
@@ -186,9 +216,15 @@ impl NeighbourList {
         self.chunks.resize_with(chunk_count, Vec::new);
         self.chunks.truncate(chunk_count);
         let ends = SharedMut(self.ends.as_mut_ptr());
+        let positions = &self.reference;
         let grid = Grid { l, cells, reach: self.reach, starts: &self.cell_starts, atoms: &self.cell_atoms, pos: &self.cell_pos, shell: &self.shell };
+        // Expected partners per atom of a uniform fluid, (2/3)π ρ reach³, with 5% to spare: the
+        // first build reserves near the final size instead of growing step by step.
+        let uniform = 2.0 / 3.0 * std::f64::consts::PI * n as f64 / (l * l * l) * self.reach.powi(3);
+        let per_atom = (uniform * 1.05).ceil() as usize + 2;
         self.chunks.par_iter_mut().enumerate().for_each(|(k, list)| {
-            let expected = list.len() + list.len() / 16 + 64;
+            let atoms = ((k + 1) * CHUNK).min(n) - k * CHUNK;
+            let expected = if list.is_empty() { atoms * per_atom } else { list.len() + list.len() / 32 + 32 };
             list.clear();
             if list.capacity() < expected {
                 list.reserve_exact(expected);
@@ -203,25 +239,23 @@ impl NeighbourList {
                 unsafe { *ends.at(i) = list.len() as u32 };
             }
         });
-        self.build_slabs(positions, l);
+        self.build_slabs(l);
     }
 
     /// Counting sort of atom indices by cell (stable: ascending within each cell), with the
     /// folded positions stored alongside in cell order.
-    fn sort_into_cells(&mut self, pos: &[[f64; 3]], l: f64, cells: usize) {
-        let cell_of = |p: &[f64; 3]| {
-            (cell_index(p[0], l, cells) * cells + cell_index(p[1], l, cells)) * cells + cell_index(p[2], l, cells)
-        };
-        counting_sort(pos.len(), cells * cells * cells, |i| cell_of(&pos[i]), &mut self.cell_starts, &mut self.cell_atoms);
+    fn sort_into_cells(&mut self, l: f64, cells: usize) {
+        let pos = &self.reference;
+        counting_sort(pos.len(), cells * cells * cells, |i| cell_of(&pos[i], l, cells), &mut self.cell_starts, &mut self.cell_atoms);
         let cp = &mut self.cell_pos;
         for v in [&mut cp.x, &mut cp.y, &mut cp.z] {
             v.clear();
         }
         for &j in &self.cell_atoms {
             let p = pos[j as usize];
-            cp.x.push(fold(p[0], l) as f32);
-            cp.y.push(fold(p[1], l) as f32);
-            cp.z.push(fold(p[2], l) as f32);
+            cp.x.push(p[0]);
+            cp.y.push(p[1]);
+            cp.z.push(p[2]);
         }
     }
 
@@ -252,20 +286,23 @@ impl NeighbourList {
         self.shell_box = l;
     }
 
-    fn build_slabs(&mut self, pos: &[[f64; 3]], l: f64) {
+    fn build_slabs(&mut self, l: f64) {
         let fit = (l / self.reach).floor() as usize;
         let slabs = if fit >= 3 { fit - fit % 3 } else { 1 };
-        counting_sort(pos.len(), slabs, |i| cell_index(pos[i][2], l, slabs), &mut self.slab_starts, &mut self.slab_atoms);
+        let pos = &self.reference;
+        counting_sort(pos.len(), slabs, |i| bin(pos[i][2], l, slabs), &mut self.slab_starts, &mut self.slab_atoms);
     }
 }
 
 /// Appends the partners owned by atom i, all-pairs search (boxes under three cells per edge).
-fn brute_partners(pos: &[[f64; 3]], l: f64, reach: f64, i: usize, list: &mut Vec<u32>) {
+fn brute_partners(pos: &[[f32; 3]], l: f64, reach: f64, i: usize, list: &mut Vec<u32>) {
+    let reach = reach + margin(l);
     let reach2 = reach * reach;
     let inv_l = 1.0 / l;
-    let pi = &pos[i];
+    let wide = |p: &[f32; 3]| [p[0] as f64, p[1] as f64, p[2] as f64];
+    let pi = wide(&pos[i]);
     for (j, pj) in pos.iter().enumerate().skip(i + 1) {
-        if separation(pi, pj, l, inv_l).1 < reach2 {
+        if separation(&pi, &wide(pj), l, inv_l).1 < reach2 {
             push_tight(list, j as u32);
         }
     }
@@ -285,14 +322,13 @@ struct Grid<'a> {
 impl Grid<'_> {
     /// Appends the partners owned by atom i: later atoms of its own cell, then the atoms of the
     /// 13 forward cells of the half shell, each cell's periodic shift applied once.
+    /// (Measured: an AVX2 build of this search is slower than the baseline one, so there is
+    /// no dispatch here, unlike the force kernel.)
     #[inline]
-    fn partners(&self, pos: &[[f64; 3]], i: usize, list: &mut Vec<u32>) {
-        // Margin for single-precision rounding of coordinates up to the box edge.
-        let reach = self.reach + 1e-4 + self.l * 1e-6;
+    fn partners(&self, pos: &[[f32; 3]], i: usize, list: &mut Vec<u32>) {
+        let reach = self.reach + margin(self.l);
         let reach2 = (reach * reach) as f32;
-        let (l, cells) = (self.l, self.cells);
-        let p = pos[i];
-        let own = (cell_index(p[0], l, cells) * cells + cell_index(p[1], l, cells)) * cells + cell_index(p[2], l, cells);
+        let own = cell_of(&pos[i], self.l, self.cells);
         let (lo, hi) = (self.starts[own] as usize, self.starts[own + 1] as usize);
         let slot = lo + self.atoms[lo..hi].iter().position(|&a| a as usize == i).expect("atom is in its own cell");
         let pi = [self.pos.x[slot], self.pos.y[slot], self.pos.z[slot]];

@@ -143,8 +143,9 @@ pub struct SimulationState {
     pub types: Vec<u8>,
     pub positions: Vec<[f64; 3]>,
     pub velocities: Vec<[f64; 3]>,
-    /// Positions at the last neighbour-list build (the list is rebuilt from these).
-    pub list_reference: Vec<[f64; 3]>,
+    /// Folded single-precision positions at the last neighbour-list build (the list is rebuilt
+    /// from these, identically).
+    pub list_reference: Vec<[f32; 3]>,
     pub list_builds: u64,
     /// Energy the thermostat has added since step 0.
     pub heat: f64,
@@ -206,7 +207,7 @@ impl Simulation {
             masses: spec.masses(),
         };
         let mut sim = Self::assemble(spec, system);
-        sim.list.build(&state.list_reference, state.box_length);
+        sim.list.build_from(&state.list_reference, state.box_length);
         sim.list.set_builds(state.list_builds);
         sim.step = state.step;
         sim.time = state.time;
