@@ -277,11 +277,10 @@ fn tune(path: &Path, timesteps: Vec<f64>, cutoffs: Vec<f64>, time: f64, equilibr
     let warm = equilibrate.unwrap_or(setup.equilibration_steps);
     eprintln!("equilibrating {warm} steps ...");
     for _ in 0..warm {
-        if let Some(a) = session.step().alarm {
-            if matches!(a, noblescope::engine::Alarm::NonFinite { .. }) {
+        if let Some(a) = session.step().alarm
+            && matches!(a, noblescope::engine::Alarm::NonFinite { .. }) {
                 return Err(RunError::Failed(a.describe()));
             }
-        }
     }
     let start = session.simulation().state();
     let mut states = vec![start.clone()];

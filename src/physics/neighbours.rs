@@ -177,7 +177,8 @@ impl NeighbourList {
         positions.par_iter().zip(self.reference.par_iter()).with_min_len(1024).any(|(p, r)| {
             let r = [r[0] as f64, r[1] as f64, r[2] as f64];
             // Not finite (a blown-up run) also counts as moved.
-            !(separation(p, &r, l, inv_l).1 <= limit)
+            let d2 = separation(p, &r, l, inv_l).1;
+            d2.is_nan() || d2 > limit
         })
     }
 
