@@ -123,26 +123,14 @@ impl Checkpoint {
         }
         let types = body[at..at + n].to_vec();
         at += n;
-        let mut read = || -> Vec<[f64; 3]> {
-            let v = body[at..at + 24 * n]
-                .chunks_exact(24)
-                .map(|c| {
-                    let f = |k: usize| f64::from_bits(u64::from_le_bytes(c[8 * k..8 * k + 8].try_into().unwrap()));
-                    [f(0), f(1), f(2)]
-                })
-                .collect();
-            at += 24 * n;
-            v
+        let mut take = |bytes: usize| {
+            let part = &body[at..at + bytes];
+            at += bytes;
+            part
         };
-        let positions = read();
-        let velocities = read();
-        let list_reference = body[at..at + 12 * n]
-            .chunks_exact(12)
-            .map(|c| {
-                let f = |k: usize| f32::from_bits(u32::from_le_bytes(c[4 * k..4 * k + 4].try_into().unwrap()));
-                [f(0), f(1), f(2)]
-            })
-            .collect();
+        let positions = triples(take(24 * n), |b| f64::from_bits(u64::from_le_bytes(b.try_into().unwrap())));
+        let velocities = triples(take(24 * n), |b| f64::from_bits(u64::from_le_bytes(b.try_into().unwrap())));
+        let list_reference = triples(take(12 * n), |b| f32::from_bits(u32::from_le_bytes(b.try_into().unwrap())));
         let setup = Setup::parse(&header.setup_ron, &format!("{file} (embedded setup)")).map_err(|e| bad(&e.to_string()))?;
         Ok(Checkpoint {
             setup,
@@ -175,6 +163,12 @@ impl Checkpoint {
         let bytes = std::fs::read(path).map_err(|e| CheckpointError::Io { file: file.clone(), message: e.to_string() })?;
         Checkpoint::from_bytes(&bytes, &file)
     }
+}
+
+/// Decodes little-endian 3-vectors; `word` turns one element's bytes into a number.
+fn triples<T: Copy>(bytes: &[u8], word: impl Fn(&[u8]) -> T) -> Vec<[T; 3]> {
+    let size = std::mem::size_of::<T>();
+    bytes.chunks_exact(3 * size).map(|c| [word(&c[..size]), word(&c[size..2 * size]), word(&c[2 * size..])]).collect()
 }
 
 /// Writes `bytes` to `path` through a temporary file and a rename.

@@ -156,21 +156,25 @@ impl PairTable {
         (energy, f_over_r)
     }
 
+    /// Σ_ab x_a x_b ε_ab σ_ab³ g(σ_ab / r_c) over species pairs.
+    fn pair_sum(&self, fractions: &[f64], g: impl Fn(f64) -> f64) -> f64 {
+        let mut sum = 0.0;
+        for a in 0..self.types {
+            for b in 0..self.types {
+                let p = self.pair(a, b);
+                sum += fractions[a] * fractions[b] * p.epsilon * p.sigma.powi(3) * g(p.sigma / self.cutoff);
+            }
+        }
+        sum
+    }
+
     /// Analytic tail correction to the potential energy per atom, assuming g(r) = 1 beyond r_c:
     /// u_tail = (8/3) π ρ Σ_ab x_a x_b ε_ab σ_ab³ [ (1/3)(σ_ab/r_c)⁹ − (σ_ab/r_c)³ ].
     ///
     /// Source: Allen & Tildesley, *Computer Simulation of Liquids* (2nd ed., 2017), §2.8,
     /// extended to mixtures by the usual sum over species pairs.
     pub fn tail_energy_per_atom(&self, density: f64, fractions: &[f64]) -> f64 {
-        let mut sum = 0.0;
-        for a in 0..self.types {
-            for b in 0..self.types {
-                let p = self.pair(a, b);
-                let sr3 = (p.sigma / self.cutoff).powi(3);
-                sum += fractions[a] * fractions[b] * p.epsilon * p.sigma.powi(3) * (sr3 * sr3 * sr3 / 3.0 - sr3);
-            }
-        }
-        8.0 / 3.0 * PI * density * sum
+        8.0 / 3.0 * PI * density * self.pair_sum(fractions, |s| s.powi(9) / 3.0 - s.powi(3))
     }
 
     /// Analytic tail correction to the pressure, assuming g(r) = 1 beyond r_c:
@@ -178,15 +182,7 @@ impl PairTable {
     ///
     /// Source: Allen & Tildesley (2017), §2.8.
     pub fn tail_pressure(&self, density: f64, fractions: &[f64]) -> f64 {
-        let mut sum = 0.0;
-        for a in 0..self.types {
-            for b in 0..self.types {
-                let p = self.pair(a, b);
-                let sr3 = (p.sigma / self.cutoff).powi(3);
-                sum += fractions[a] * fractions[b] * p.epsilon * p.sigma.powi(3) * (2.0 / 3.0 * sr3 * sr3 * sr3 - sr3);
-            }
-        }
-        16.0 / 3.0 * PI * density * density * sum
+        16.0 / 3.0 * PI * density * density * self.pair_sum(fractions, |s| 2.0 / 3.0 * s.powi(9) - s.powi(3))
     }
 }
 
@@ -211,6 +207,21 @@ mod tests {
         let sf = PairTable::lorentz_berthelot(&[1.0], &[1.0], rc, PotentialMode::ShiftedForce);
         let (e, f) = sf.evaluate(0, 0, r2);
         assert!(e.abs() < 1e-12 && f.abs() < 1e-8);
+    }
+
+    #[test]
+    fn tail_corrections_match_the_closed_form() {
+        // Allen & Tildesley (2017) §2.8 for one species at r_c = 2.5, ρ = 0.8442:
+        // u_tail = (8/3)πρ[(1/3)r_c⁻⁹ − r_c⁻³] ≈ −0.4520, p_tail = (16/3)πρ²[(2/3)r_c⁻⁹ − r_c⁻³] ≈ −0.7621.
+        let t = PairTable::lorentz_berthelot(&[1.0], &[1.0], 2.5, PotentialMode::Truncated);
+        let rc: f64 = 2.5;
+        let u = 8.0 / 3.0 * PI * 0.8442 * (rc.powi(-9) / 3.0 - rc.powi(-3));
+        let p = 16.0 / 3.0 * PI * 0.8442f64.powi(2) * (2.0 / 3.0 * rc.powi(-9) - rc.powi(-3));
+        assert!((t.tail_energy_per_atom(0.8442, &[1.0]) - u).abs() < 1e-12 && (u + 0.4520).abs() < 1e-4);
+        assert!((t.tail_pressure(0.8442, &[1.0]) - p).abs() < 1e-12 && (p + 0.7621).abs() < 1e-4);
+        // A "mixture" of two identical species gives the same corrections.
+        let m = PairTable::lorentz_berthelot(&[1.0, 1.0], &[1.0, 1.0], 2.5, PotentialMode::Truncated);
+        assert!((m.tail_energy_per_atom(0.8442, &[0.3, 0.7]) - u).abs() < 1e-12);
     }
 
     #[test]
