@@ -17,44 +17,44 @@ struct Cli {
     command: Option<Cmd>,
 }
 
+/// Flags shared by `run` and `resume`.
+#[derive(clap::Args)]
+struct RunFlags {
+    /// Run until this step instead of the setup's `steps`.
+    #[arg(long)]
+    steps: Option<u64>,
+    /// Worker threads for the force loop (default: all cores).
+    #[arg(long)]
+    threads: Option<usize>,
+    /// No progress bar.
+    #[arg(long)]
+    quiet: bool,
+    /// Replace the files of an earlier run in the output folder.
+    #[arg(long)]
+    overwrite: bool,
+}
+
 #[derive(Subcommand)]
 enum Cmd {
     /// Run a setup file headless and write energy.csv, summary.json and final.checkpoint.
     Run {
         /// The setup file (RON).
         setup: PathBuf,
-        /// Run until this step instead of the setup's `steps`.
-        #[arg(long)]
-        steps: Option<u64>,
         /// Output folder (default: runs/<setup file name>).
         #[arg(long)]
         out: Option<PathBuf>,
-        /// Worker threads for the force loop (default: all cores).
-        #[arg(long)]
-        threads: Option<usize>,
-        /// No progress bar.
-        #[arg(long)]
-        quiet: bool,
-        /// Replace the files of an earlier run in the output folder.
-        #[arg(long)]
-        overwrite: bool,
+        #[command(flatten)]
+        run: RunFlags,
     },
     /// Continue a run from a checkpoint, bit for bit as if it had never stopped.
     Resume {
         /// A checkpoint written by `run` or by the window.
         checkpoint: PathBuf,
-        /// Run until this step (default: the setup's `steps`).
-        #[arg(long)]
-        steps: Option<u64>,
         /// Output folder for the continued run.
         #[arg(long)]
         out: PathBuf,
-        #[arg(long)]
-        threads: Option<usize>,
-        #[arg(long)]
-        quiet: bool,
-        #[arg(long)]
-        overwrite: bool,
+        #[command(flatten)]
+        run: RunFlags,
     },
     /// Scan timesteps and cutoffs from an equilibrated state of a setup.
     Tune {
@@ -143,31 +143,32 @@ fn report(summary: &noblescope::io::summary::Summary, out: &Path, quiet: bool) {
     println!("  {}", noblescope::io::summary::MODEL_CAUTION);
 }
 
+fn run_to_end(session: Session, fresh: bool, out: PathBuf, threads: usize, run: &RunFlags) -> Result<(), RunError> {
+    let opts = HeadlessOptions { until_step: run.steps, out: out.clone(), threads, quiet: run.quiet, overwrite: run.overwrite };
+    let summary = headless::run(session, fresh, &opts)?;
+    report(&summary, &out, run.quiet);
+    Ok(())
+}
+
 fn run_headless(cmd: Cmd) -> Result<(), RunError> {
     match cmd {
-        Cmd::Run { setup, steps, out, threads, quiet, overwrite } => {
-            let threads = set_threads(threads)?;
+        Cmd::Run { setup, out, run } => {
+            let threads = set_threads(run.threads)?;
             let parsed = Setup::load(&setup).map_err(|e| RunError::BadInput(e.to_string()))?;
             let out = out.unwrap_or_else(|| default_out(&setup));
-            headless::check_output_dir(&out, overwrite)?;
+            headless::check_output_dir(&out, run.overwrite)?;
             for note in parsed.cautions() {
                 eprintln!("caution: {note}");
             }
             let session = Session::new(parsed).map_err(|e| RunError::BadInput(format!("{}: {e}", setup.display())))?;
-            let opts = HeadlessOptions { until_step: steps, out: out.clone(), threads, quiet, overwrite };
-            let summary = headless::run(session, true, &opts)?;
-            report(&summary, &out, quiet);
-            Ok(())
+            run_to_end(session, true, out, threads, &run)
         }
-        Cmd::Resume { checkpoint, steps, out, threads, quiet, overwrite } => {
-            let threads = set_threads(threads)?;
-            headless::check_output_dir(&out, overwrite)?;
+        Cmd::Resume { checkpoint, out, run } => {
+            let threads = set_threads(run.threads)?;
+            headless::check_output_dir(&out, run.overwrite)?;
             let c = Checkpoint::load(&checkpoint).map_err(|e| RunError::BadInput(e.to_string()))?;
             let session = Session::from_checkpoint(c).map_err(|e| RunError::BadInput(format!("{}: {e}", checkpoint.display())))?;
-            let opts = HeadlessOptions { until_step: steps, out: out.clone(), threads, quiet, overwrite };
-            let summary = headless::run(session, false, &opts)?;
-            report(&summary, &out, quiet);
-            Ok(())
+            run_to_end(session, false, out, threads, &run)
         }
         Cmd::Tune { setup, timesteps, cutoffs, time, equilibrate, out, threads } => {
             set_threads(threads)?;
