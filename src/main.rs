@@ -55,6 +55,32 @@ enum Cmd {
         #[arg(long)]
         overwrite: bool,
     },
+    /// Open the window on a setup file; with --frames, run a scripted watch and exit.
+    Watch {
+        /// The setup file (RON).
+        setup: PathBuf,
+        /// Start running at once.
+        #[arg(long)]
+        run: bool,
+        /// Close after this many displayed frames (scripted mode).
+        #[arg(long)]
+        frames: Option<u32>,
+        /// Write a JSON report (frame times, atom-steps per second while displayed) here.
+        #[arg(long)]
+        report: Option<PathBuf>,
+        /// Save a PNG picture of the window here before closing.
+        #[arg(long)]
+        screenshot: Option<PathBuf>,
+        /// What to show first.
+        #[arg(long, value_enum)]
+        view: Option<noblescope::ui::watch::StartView>,
+        /// Window size in points, e.g. 1440x900.
+        #[arg(long, value_parser = parse_size)]
+        size: Option<[f32; 2]>,
+        /// Worker threads for the force loop (default: all cores).
+        #[arg(long)]
+        threads: Option<usize>,
+    },
     /// Measure speed and memory on the standard LJ liquid.
     Bench {
         /// Atom counts to measure, ascending.
@@ -143,6 +169,7 @@ fn run_headless(cmd: Cmd) -> Result<(), RunError> {
             report(&summary, &out, quiet);
             Ok(())
         }
+        Cmd::Watch { .. } => unreachable!("the window handles watch"),
         Cmd::Bench { atoms, steps, warmup, threads, json } => {
             set_threads(threads)?;
             let mut sorted = atoms.clone();
@@ -176,16 +203,65 @@ fn run_headless(cmd: Cmd) -> Result<(), RunError> {
     }
 }
 
+fn parse_size(text: &str) -> Result<[f32; 2], String> {
+    let bad = || format!("--size: \"{text}\" is not a size; allowed: WIDTHxHEIGHT with each from 400 to 8000, e.g. 1440x900");
+    let (w, h) = text.split_once(['x', 'X']).ok_or_else(bad)?;
+    let w: f32 = w.trim().parse().map_err(|_| bad())?;
+    let h: f32 = h.trim().parse().map_err(|_| bad())?;
+    if !(400.0..=8000.0).contains(&w) || !(400.0..=8000.0).contains(&h) {
+        return Err(bad());
+    }
+    Ok([w, h])
+}
+
 fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {
-        None => match open_window() {
+        None => match open_window(None) {
             Ok(()) => ExitCode::SUCCESS,
             Err(e) => {
                 eprintln!("error: {e:#}");
                 ExitCode::from(1)
             }
         },
+        Some(Cmd::Watch { setup, run, frames, report, screenshot, view, size, threads }) => {
+            if let Err(e) = set_threads(threads) {
+                eprintln!("error: {e}");
+                return ExitCode::from(e.exit_code() as u8);
+            }
+            if frames == Some(0) {
+                eprintln!("error: --frames: 0 is out of range; allowed: 1 to 4294967295");
+                return ExitCode::from(2);
+            }
+            let parsed = match Setup::load(&setup) {
+                Ok(s) => s,
+                Err(e) => {
+                    eprintln!("error: {e}");
+                    return ExitCode::from(2);
+                }
+            };
+            if let Err(e) = parsed.resolve() {
+                eprintln!("error: {}: {e}", setup.display());
+                return ExitCode::from(2);
+            }
+            for note in parsed.cautions() {
+                eprintln!("caution: {note}");
+            }
+            let scripted = frames.is_some();
+            let opts = noblescope::ui::StartOptions {
+                setup: Some((parsed, Some(setup))),
+                view,
+                watch: Some(noblescope::ui::watch::WatchPlan { run, frames, report, screenshot }),
+                persist: !scripted,
+            };
+            match open_window(Some((opts, size))) {
+                Ok(()) => ExitCode::SUCCESS,
+                Err(e) => {
+                    eprintln!("error: {e:#}");
+                    ExitCode::from(1)
+                }
+            }
+        }
         Some(cmd) => match run_headless(cmd) {
             Ok(()) => ExitCode::SUCCESS,
             Err(e) => {
@@ -196,6 +272,8 @@ fn main() -> ExitCode {
     }
 }
 
-fn open_window() -> anyhow::Result<()> {
-    anyhow::bail!("the window is not built into this binary yet")
+/// Opens the window: on the given options, or on the remembered (else bundled) setup.
+fn open_window(with: Option<(noblescope::ui::StartOptions, Option<[f32; 2]>)>) -> anyhow::Result<()> {
+    let (opts, size) = with.unwrap_or_else(|| (noblescope::ui::StartOptions { persist: true, ..Default::default() }, None));
+    noblescope::ui::window::run(opts, size)
 }
