@@ -524,19 +524,19 @@ impl NoblescopeApp {
             });
             ui.separator();
             let running = self.status.status.running;
-            let label = if running { "⏸ Pause" } else { "▶ Run" };
+            let label = if running { "Pause" } else { "Run" };
             if ui.button(label).on_hover_text("Space").clicked() {
                 self.toggle_run();
             }
-            if ui.button("⏭ Step").on_hover_text("S: one step").clicked() {
+            if ui.button("Step").on_hover_text("S: one step").clicked() {
                 self.send(Command::StepOnce);
             }
-            if ui.button("⟲ Reset").on_hover_text("R: restart the present setup from step 0").clicked() {
+            if ui.button("Reset").on_hover_text("R: restart the present setup from step 0").clicked() {
                 self.send(Command::Reset);
             }
             ui.separator();
-            ui.toggle_value(&mut self.form_open, "☰ Setup").on_hover_text("Ctrl+3: show or hide the setup form");
-            if ui.button("? Help").on_hover_text("F1").clicked() {
+            ui.toggle_value(&mut self.form_open, "Setup form").on_hover_text("Ctrl+3: show or hide the setup form");
+            if ui.button("Help").on_hover_text("F1").clicked() {
                 self.help_open = !self.help_open;
             }
             ui.separator();
@@ -673,8 +673,12 @@ impl NoblescopeApp {
             self.request_leave(&ctx, Leave::OpenPath(p));
         }
 
-        egui::Panel::top("top-bar").show(ui, |ui| self.top_bar(ui));
-        egui::Panel::bottom("status-bar").show(ui, |ui| {
+        // Panels are not filled: the window is cleared to the panel colour once, which saves
+        // software renderers a full-window blend per panel.
+        let bare = |f: egui::Frame| f.fill(egui::Color32::TRANSPARENT);
+        let style = ui.style().clone();
+        egui::Panel::top("top-bar").frame(bare(egui::Frame::side_top_panel(&style))).show(ui, |ui| self.top_bar(ui));
+        egui::Panel::bottom("status-bar").frame(bare(egui::Frame::side_top_panel(&style))).show(ui, |ui| {
             self.status.show(ui, self.running.units());
             ui.horizontal_wrapped(|ui| {
                 ui.label(egui::RichText::new("About these numbers:").small().color(palette::CAUTION_TEXT));
@@ -682,7 +686,7 @@ impl NoblescopeApp {
             });
         });
         if self.form_open {
-            egui::Panel::left("setup-form").resizable(true).default_size(430.0).min_size(300.0).show(ui, |ui| {
+            egui::Panel::left("setup-form").frame(bare(egui::Frame::side_top_panel(&style))).resizable(true).default_size(430.0).min_size(300.0).show(ui, |ui| {
                 ui.heading("Setup");
                 egui::ScrollArea::vertical().show(ui, |ui| {
                     let running = self.running.clone();
@@ -692,12 +696,12 @@ impl NoblescopeApp {
                 });
             });
         }
-        egui::CentralPanel::default().show(ui, |ui| {
+        egui::CentralPanel::default().frame(bare(egui::Frame::central_panel(&style))).show(ui, |ui| {
             if self.status.alarm_banner(ui) {
                 self.send(Command::Rewind);
             }
             for note in self.running.cautions() {
-                ui.colored_label(palette::CAUTION_TEXT, format!("ⓘ {note}"));
+                ui.colored_label(palette::CAUTION_TEXT, format!("Note: {note}"));
             }
             let h = ui.available_height();
             let w = ui.available_width();

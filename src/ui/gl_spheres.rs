@@ -27,6 +27,8 @@ pub struct SphereScene {
     /// Pixels per σ at unit view distance (perspective) or everywhere (orthographic).
     pub pixels_per_unit: f32,
     pub orthographic: bool,
+    /// Colour the view is cleared to (gamma-space RGBA), cheaper than painting a rectangle.
+    pub background: [f32; 4],
 }
 
 impl SphereScene {
@@ -86,9 +88,12 @@ void main() {
     vec3 n = vec3(p, sqrt(1.0 - r2));
     vec3 l = normalize(vec3(-0.45, 0.6, 0.7));
     float diffuse = max(dot(n, l), 0.0);
-    float highlight = pow(max(dot(reflect(-l, n), vec3(0.0, 0.0, 1.0)), 0.0), 28.0);
-    vec3 c = v_colour * (0.3 + 0.7 * diffuse) + vec3(0.22) * highlight;
-    o_colour = vec4(c * (0.82 + 0.18 * n.z), 1.0);
+    // A cheap highlight (no pow): a squared-off bump where the normal meets the half vector.
+    float h = max(dot(n, normalize(l + vec3(0.0, 0.0, 1.0))), 0.0);
+    float h4 = h * h;
+    h4 = h4 * h4;
+    vec3 c = v_colour * (0.3 + 0.7 * diffuse) + vec3(0.2) * h4 * h4;
+    o_colour = vec4(c, 1.0);
 }
 "#;
 
@@ -211,7 +216,9 @@ impl Gl {
             gl.scissor(clip.left_px, clip.from_bottom_px, clip.width_px, clip.height_px);
             gl.depth_mask(true);
             gl.clear_depth_f32(1.0);
-            gl.clear(glow::DEPTH_BUFFER_BIT);
+            let [r, g, b, a] = scene.background;
+            gl.clear_color(r, g, b, a);
+            gl.clear(glow::DEPTH_BUFFER_BIT | glow::COLOR_BUFFER_BIT);
             if n == 0 {
                 return;
             }

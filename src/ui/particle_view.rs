@@ -99,8 +99,8 @@ impl ParticleView {
         let ppp = ui.ctx().pixels_per_point();
         self.fill(frame, rect, ppp);
         let painter = ui.painter_at(rect);
-        painter.rect_filled(rect, 4.0, palette::VIEW_BACKGROUND);
         if frame.is_empty() {
+            painter.rect_filled(rect, 4.0, palette::VIEW_BACKGROUND);
             painter.text(rect.center(), egui::Align2::CENTER_CENTER, "waiting for the first frame…", egui::FontId::proportional(15.0), palette::BOX_LINE);
         } else {
             painter.add(self.renderer.callback(rect));
@@ -201,6 +201,7 @@ impl ParticleView {
         scene.proj = proj.to_cols_array();
         scene.pixels_per_unit = ppu;
         scene.orthographic = ortho;
+        scene.background = palette::VIEW_BACKGROUND.to_normalized_gamma_f32();
         let key = (self.settings, frame.step, frame.len());
         let mut look = self.settings;
         look.orbit = Orbit::default();

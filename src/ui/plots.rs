@@ -130,7 +130,8 @@ impl Plots {
                 .link_axis(link, [true, false])
                 .link_cursor(link, [true, false])
                 .allow_scroll(false)
-                .y_axis_min_width(44.0)
+                .y_axis_min_width(64.0)
+                .show_background(false)
         };
         let Plots { drift, kinetic, potential, total, temperature, pressure, .. } = self;
         ui.horizontal(|ui| {

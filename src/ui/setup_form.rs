@@ -254,7 +254,7 @@ impl SetupForm {
                 ui.painter().circle_filled(rect.center(), 5.5, palette::species_colour(row.kind));
                 let l = ui.label("share");
                 ui.add(egui::TextEdit::singleline(&mut row.share).desired_width(60.0)).labelled_by(l.id);
-                if n > 1 && ui.small_button("✕").on_hover_text("remove this species").clicked() {
+                if n > 1 && ui.small_button("Remove").on_hover_text("remove this species").clicked() {
                     remove = Some(i);
                 }
             });
@@ -265,7 +265,7 @@ impl SetupForm {
             self.species.remove(i);
         }
         ui.horizontal(|ui| {
-            if self.species.len() < crate::io::setup::MAX_SPECIES && ui.button("➕ Add species").clicked() {
+            if self.species.len() < crate::io::setup::MAX_SPECIES && ui.button("Add species").clicked() {
                 let used: Vec<Species> = self.species.iter().map(|r| r.kind).collect();
                 if let Some(s) = Species::ALL.into_iter().find(|s| s.is_real() && !used.contains(s)) {
                     self.species.push(SpeciesRow { kind: s, share: "0".into() });
@@ -287,7 +287,7 @@ impl SetupForm {
         self.temperature.show(ui, "Temperature", &draft);
         err_at(ui, "temperature");
         for note in draft.cautions() {
-            ui.colored_label(palette::CAUTION_TEXT, format!("ⓘ {note}"));
+            ui.colored_label(palette::CAUTION_TEXT, format!("Note: {note}"));
         }
 
         ui.separator();
@@ -350,7 +350,7 @@ impl SetupForm {
         ui.horizontal(|ui| {
             let ok = built.is_ok();
             let apply = ui
-                .add_enabled(ok && unapplied, egui::Button::new("⟳ Apply and restart"))
+                .add_enabled(ok && unapplied, egui::Button::new("Apply and restart"))
                 .on_hover_text("start a fresh simulation from this setup")
                 .on_disabled_hover_text(if ok { "nothing to apply" } else { "fix the marked fields first" });
             if apply.clicked() {
@@ -360,7 +360,7 @@ impl SetupForm {
             }
             let live = built.as_ref().map(|s| Self::live_changeable(running, s)).unwrap_or(false);
             let r = ui
-                .add_enabled(live, egui::Button::new("⚡ Change live"))
+                .add_enabled(live, egui::Button::new("Change live"))
                 .on_hover_text("send timestep, interaction and bath changes to the running simulation")
                 .on_disabled_hover_text("only timestep, cutoff, skin, potential, tail correction, ensemble and temperature change live");
             if r.clicked() {
@@ -368,7 +368,7 @@ impl SetupForm {
                     action = Some(FormAction::ApplyLive(Box::new(s.clone())));
                 }
             }
-            if ui.add_enabled(unapplied, egui::Button::new("↶ Revert")).on_hover_text("show the running setup again").clicked() {
+            if ui.add_enabled(unapplied, egui::Button::new("Revert")).on_hover_text("show the running setup again").clicked() {
                 action = Some(FormAction::Revert);
             }
         });

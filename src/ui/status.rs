@@ -54,7 +54,7 @@ impl StatusLine {
             ui.horizontal_wrapped(|ui| {
                 ui.colored_label(egui::Color32::WHITE, egui::RichText::new("⚠ Watchdog stopped the run").strong());
                 ui.colored_label(egui::Color32::WHITE, alarm.describe());
-                rewind = ui.button("⏮ Rewind to the last safe state").clicked();
+                rewind = ui.button("Rewind to the last safe state").clicked();
                 dismiss = ui.button("Dismiss").clicked();
             });
         });
