@@ -217,7 +217,7 @@ fn parse_size(text: &str) -> Result<[f32; 2], String> {
 fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {
-        None => match open_window(None) {
+        None => match set_threads(Some(window_threads())).map_err(|e| anyhow::anyhow!("{e}")).and_then(|_| open_window(None)) {
             Ok(()) => ExitCode::SUCCESS,
             Err(e) => {
                 eprintln!("error: {e:#}");
@@ -225,7 +225,7 @@ fn main() -> ExitCode {
             }
         },
         Some(Cmd::Watch { setup, run, frames, report, screenshot, view, size, threads }) => {
-            if let Err(e) = set_threads(threads) {
+            if let Err(e) = set_threads(Some(threads.unwrap_or_else(window_threads))) {
                 eprintln!("error: {e}");
                 return ExitCode::from(e.exit_code() as u8);
             }
@@ -270,6 +270,12 @@ fn main() -> ExitCode {
             }
         },
     }
+}
+
+/// Force-loop threads while the window is open: all cores but one, which stays free for
+/// drawing (software OpenGL draws on the CPU).
+fn window_threads() -> usize {
+    std::thread::available_parallelism().map(|n| n.get()).unwrap_or(2).saturating_sub(1).max(1)
 }
 
 /// Opens the window: on the given options, or on the remembered (else bundled) setup.

@@ -641,6 +641,14 @@ impl NoblescopeApp {
 
     /// Draws the whole window into `ui` (eframe's root ui or a test harness's).
     pub fn show(&mut self, ui: &mut egui::Ui) {
+        let started = Instant::now();
+        self.show_inner(ui);
+        if let Some((_, rec, _)) = &mut self.watch {
+            rec.build_time(started.elapsed());
+        }
+    }
+
+    fn show_inner(&mut self, ui: &mut egui::Ui) {
         let ctx = ui.ctx().clone();
         if self.engine.is_none() {
             self.start_engine(&ctx);

@@ -3,13 +3,14 @@
 //!
 //! - [`app`]: the eframe application, owning the engine handle;
 //! - [`setup_form`], [`unit_field`]: editing and validating a setup;
-//! - [`particle_view`], [`slab_view`], [`gl_spheres`]: the atoms in 3D or as a flat slab;
+//! - [`particle_view`], [`slab_view`], [`gl_spheres`], [`cull`]: the atoms in 3D or as a flat slab;
 //! - [`plots`], [`series`]: live plots on bounded, envelope-keeping series;
 //! - [`status`], [`help`], [`palette`]: status line, keys and colours;
 //! - [`files`]: dialogs and writers; [`watch`]: scripted watching for reports and pictures;
 //! - [`window`]: opening the native window.
 
 pub mod app;
+pub mod cull;
 pub mod files;
 pub mod gl_spheres;
 pub mod help;

@@ -3,6 +3,7 @@
 //! one GL call; the vertex buffer is refilled in place only when a new frame arrives or the
 //! look changes.
 
+use super::cull::{Culler, Projected};
 use super::gl_spheres::{FLOATS_PER_ATOM, SphereRenderer};
 use super::palette;
 use super::slab_view::Slab;
@@ -65,8 +66,9 @@ impl Default for ViewSettings {
 pub struct ParticleView {
     pub settings: ViewSettings,
     renderer: SphereRenderer,
-    /// Settings and frame step the vertex buffer was last filled for.
-    filled_for: Option<(ViewSettings, u64, usize)>,
+    /// Settings, frame step, atom count and view size the vertex buffer was last filled for.
+    filled_for: Option<(ViewSettings, u64, usize, [u32; 2])>,
+    culler: Culler,
     /// Upper end of the colour scale of the last fill (σ/τ or ε).
     scale_max: f32,
     shown: usize,
@@ -75,7 +77,7 @@ pub struct ParticleView {
 impl ParticleView {
     /// A view with the given settings.
     pub fn new(settings: ViewSettings) -> Self {
-        ParticleView { settings, renderer: SphereRenderer::new(), filled_for: None, scale_max: 1.0, shown: 0 }
+        ParticleView { settings, renderer: SphereRenderer::new(), filled_for: None, culler: Culler::new(), scale_max: 1.0, shown: 0 }
     }
 
     /// The renderer (to free its GL objects on exit).
@@ -196,21 +198,17 @@ impl ParticleView {
     fn fill(&mut self, frame: &Frame, rect: egui::Rect, ppp: f32) {
         let l = frame.box_length.max(1e-3);
         let (view, proj, ppu, ortho) = self.camera(rect, ppp, l);
+        let (view, proj) = (view, proj);
         let mut scene = self.renderer.scene().lock().unwrap_or_else(|p| p.into_inner());
         scene.view = view.to_cols_array();
         scene.proj = proj.to_cols_array();
         scene.pixels_per_unit = ppu;
         scene.orthographic = ortho;
         scene.background = palette::VIEW_BACKGROUND.to_normalized_gamma_f32();
-        let key = (self.settings, frame.step, frame.len());
-        let mut look = self.settings;
-        look.orbit = Orbit::default();
-        if let Some((s, step, n)) = self.filled_for {
-            let mut old = s;
-            old.orbit = Orbit::default();
-            if old == look && step == frame.step && n == frame.len() {
-                return;
-            }
+        let px = [(rect.width() * ppp) as u32, (rect.height() * ppp) as u32];
+        let key = (self.settings, frame.step, frame.len(), px);
+        if self.filled_for == Some(key) {
+            return;
         }
         self.filled_for = Some(key);
         let n = frame.len().max(1) as f32;
@@ -236,10 +234,28 @@ impl ParticleView {
         match self.settings.mode {
             ViewMode::Box3d => {
                 v.reserve(frame.len() * FLOATS_PER_ATOM);
-                for (i, p) in frame.positions.iter().enumerate() {
+                let (w_px, h_px) = (px[0] as f32, px[1] as f32);
+                let fy = proj.y_axis.y * 0.5 * h_px;
+                let near = 0.05 * l;
+                let project = |i: usize| -> Option<Projected> {
+                    let p = frame.positions[i];
+                    let q = view * Vec4::new(p[0], p[1], p[2], 1.0);
+                    let depth = -q.z;
+                    if depth <= near {
+                        return None;
+                    }
+                    let c = proj * q;
+                    let (nx, ny) = (c.x / c.w, c.y / c.w);
+                    let radius = radius(i);
+                    Some(Projected { x: (nx * 0.5 + 0.5) * w_px, y: (0.5 - ny * 0.5) * h_px, r: radius * fy / depth, depth, radius })
+                };
+                let centre_depth = (view * Vec4::new(0.5 * l, 0.5 * l, 0.5 * l, 1.0)).z.abs().max(near);
+                let typical = frame.sigmas.first().copied().unwrap_or(1.0) * size * fy / centre_depth;
+                self.culler.run(frame.len(), w_px, h_px, 0.5 * typical, project, |i| {
+                    let p = frame.positions[i];
                     let c = colour(i);
                     v.extend_from_slice(&[p[0], p[1], p[2], radius(i), c[0], c[1], c[2]]);
-                }
+                });
             }
             ViewMode::Slab => {
                 self.settings.slab.select(frame, |i, x, y, d| {
@@ -322,7 +338,7 @@ impl ParticleView {
             }
             ui.separator();
             ui.weak(match self.settings.mode {
-                ViewMode::Box3d => format!("{} atoms, box edge {:.2} σ", frame.len(), frame.box_length),
+                ViewMode::Box3d => format!("{} atoms, box edge {:.2} σ ({} drawn, the rest are hidden behind them)", frame.len(), frame.box_length, self.shown),
                 ViewMode::Slab => format!("{} of {} atoms in the slab", self.shown, frame.len()),
             });
         });

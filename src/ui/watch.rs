@@ -49,6 +49,9 @@ pub struct WatchReport {
     pub frame_time_p95_ms: f64,
     pub frame_time_max_ms: f64,
     pub frame_time_mean_ms: f64,
+    /// Time spent building the UI each frame (before the GPU or software rasteriser draws it).
+    pub ui_build_p50_ms: f64,
+    pub ui_build_p95_ms: f64,
     /// Simulation speed over the displayed frames, from the engine's step counter.
     pub atom_steps_per_second: f64,
     pub steps_advanced: u64,
@@ -67,6 +70,8 @@ pub struct WatchRecorder {
     frames_seen: usize,
     /// Frame intervals in ms after warm-up.
     intervals: Vec<f64>,
+    /// UI build times in ms after warm-up.
+    builds: Vec<f64>,
     /// First and latest (time, step) seen from the engine while measuring.
     first_step: Option<(Instant, u64)>,
     last_step: Option<(Instant, u64)>,
@@ -89,6 +94,13 @@ impl WatchRecorder {
         self.frames_seen += 1;
     }
 
+    /// Call with the time one UI build took.
+    pub fn build_time(&mut self, d: std::time::Duration) {
+        if self.frames_seen > WARMUP_FRAMES {
+            self.builds.push(d.as_secs_f64() * 1e3);
+        }
+    }
+
     /// Call with every engine status step while measuring.
     pub fn step(&mut self, now: Instant, step: u64) {
         if self.frames_seen > WARMUP_FRAMES {
@@ -106,15 +118,21 @@ impl WatchRecorder {
 
     /// The report for `atoms` atoms.
     pub fn report(&self, atoms: usize, view: &str, screenshot: Option<String>) -> WatchReport {
-        let mut v = self.intervals.clone();
-        v.sort_by(|a, b| a.partial_cmp(b).unwrap_or(std::cmp::Ordering::Equal));
-        let pct = |p: f64| -> f64 {
+        let sorted = |x: &[f64]| {
+            let mut v = x.to_vec();
+            v.sort_by(|a, b| a.partial_cmp(b).unwrap_or(std::cmp::Ordering::Equal));
+            v
+        };
+        let at = |v: &[f64], p: f64| -> f64 {
             if v.is_empty() {
                 return 0.0;
             }
             let k = ((p / 100.0) * (v.len() - 1) as f64).round() as usize;
             v[k.min(v.len() - 1)]
         };
+        let v = sorted(&self.intervals);
+        let b = sorted(&self.builds);
+        let pct = |p: f64| at(&v, p);
         let (steps, secs) = match (self.first_step, self.last_step) {
             (Some((t0, s0)), Some((t1, s1))) if t1 > t0 => (s1.saturating_sub(s0), (t1 - t0).as_secs_f64()),
             _ => (0, 0.0),
@@ -126,6 +144,8 @@ impl WatchRecorder {
             frame_time_p50_ms: pct(50.0),
             frame_time_p95_ms: pct(95.0),
             frame_time_max_ms: v.last().copied().unwrap_or(0.0),
+            ui_build_p50_ms: at(&b, 50.0),
+            ui_build_p95_ms: at(&b, 95.0),
             frame_time_mean_ms: if v.is_empty() { 0.0 } else { v.iter().sum::<f64>() / v.len() as f64 },
             atom_steps_per_second: if secs > 0.0 { steps as f64 * atoms as f64 / secs } else { 0.0 },
             steps_advanced: steps,
