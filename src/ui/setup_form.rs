@@ -226,7 +226,7 @@ impl SetupForm {
         let mut action = None;
         let err_at = |ui: &mut egui::Ui, key: &str| {
             if let Some(e) = errors.get(key) {
-                ui.colored_label(palette::ERROR_TEXT, format!("⚠ {e}"));
+                ui.colored_label(palette::ERROR_TEXT, e.clone());
             }
         };
 
@@ -328,7 +328,7 @@ impl SetupForm {
         }
 
         ui.separator();
-        ui.strong("Run");
+        ui.strong("Run length and sampling");
         egui::Grid::new("run-grid").num_columns(2).show(ui, |ui| {
             for (label, text) in [
                 ("Steps", &mut self.steps),

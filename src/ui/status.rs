@@ -52,7 +52,7 @@ impl StatusLine {
         let mut dismiss = false;
         egui::Frame::new().fill(palette::ALARM).inner_margin(8.0).corner_radius(4.0).show(ui, |ui| {
             ui.horizontal_wrapped(|ui| {
-                ui.colored_label(egui::Color32::WHITE, egui::RichText::new("⚠ Watchdog stopped the run").strong());
+                ui.colored_label(egui::Color32::WHITE, egui::RichText::new("Watchdog stopped the run:").strong());
                 ui.colored_label(egui::Color32::WHITE, alarm.describe());
                 rewind = ui.button("Rewind to the last safe state").clicked();
                 dismiss = ui.button("Dismiss").clicked();

@@ -228,13 +228,15 @@ pub fn format_number(v: f64) -> String {
     if v == 0.0 || !v.is_finite() {
         return format!("{v}");
     }
+    // Round to six significant digits first, so 0.0049999999 shows as 0.005.
+    let v: f64 = format!("{v:.5e}").parse().unwrap_or(v);
     let a = v.abs();
     if (1e-3..1e6).contains(&a) {
-        let digits = (4 - a.log10().floor() as i32).clamp(0, 8) as usize;
+        let digits = (5 - a.log10().floor() as i32).clamp(0, 9) as usize;
         let s = format!("{v:.digits$}");
         if s.contains('.') { s.trim_end_matches('0').trim_end_matches('.').to_string() } else { s }
     } else {
-        format!("{v:.4e}")
+        format!("{v:.5e}")
     }
 }
 
@@ -245,17 +247,26 @@ pub struct UnitField<Q: Quantity> {
     pub text: String,
     /// The unit picked.
     pub unit: Q,
+    /// The full-precision value behind `text` when the text was written by a conversion (so
+    /// converting back and forth does not accumulate rounding); ignored once the text is edited.
+    exact: Option<(f64, String)>,
 }
 
 impl<Q: Quantity> UnitField<Q> {
     /// A field showing a setup value.
     pub fn from_value(v: Q::Value) -> Self {
         let (unit, x) = Q::split(v);
-        UnitField { text: format_number(x), unit }
+        let text = format_number(x);
+        UnitField { exact: Some((x, text.clone())), text, unit }
     }
 
     /// The typed number, or a message naming the field and the problem.
     pub fn number(&self, field: &str) -> Result<f64, String> {
+        if let Some((v, shown)) = &self.exact {
+            if *shown == self.text {
+                return Ok(*v);
+            }
+        }
         let t = self.text.trim();
         match t.parse::<f64>() {
             Ok(x) if x.is_finite() => Ok(x),
@@ -277,7 +288,9 @@ impl<Q: Quantity> UnitField<Q> {
         if let Ok(x) = self.number("") {
             if let (Ok(r), Ok(per)) = (Q::reduce(setup, self.unit.make(x)), Q::reduce(setup, unit.make(1.0))) {
                 if per != 0.0 {
-                    self.text = format_number(r / per);
+                    let v = r / per;
+                    self.text = format_number(v);
+                    self.exact = Some((v, self.text.clone()));
                 }
             }
         }
@@ -313,7 +326,8 @@ impl<Q: Quantity> UnitField<Q> {
                     }
                 })
                 .response
-                .on_hover_text(format!("unit of {label}"));
+                .on_hover_text(format!("unit of {label}"))
+                .widget_info(|| egui::WidgetInfo::labeled(egui::WidgetType::ComboBox, true, format!("unit of {label}")));
             if picked != self.unit {
                 self.set_unit(setup, picked);
                 changed = true;
