@@ -327,7 +327,7 @@ impl<Q: Quantity> UnitField<Q> {
                 })
                 .response
                 .on_hover_text(format!("unit of {label}"))
-                .widget_info(|| egui::WidgetInfo::labeled(egui::WidgetType::ComboBox, true, format!("unit of {label}")));
+                .widget_info(|| egui::WidgetInfo::labeled(egui::Role::ComboBox, true, format!("unit of {label}")));
             if picked != self.unit {
                 self.set_unit(setup, picked);
                 changed = true;
