@@ -5,6 +5,7 @@ use noblescope::engine::bench;
 use noblescope::engine::headless::{self, HeadlessOptions, RunError};
 use noblescope::engine::Session;
 use noblescope::io::checkpoint::Checkpoint;
+use noblescope::io::setup::{Duration, Length};
 use noblescope::io::Setup;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
@@ -81,6 +82,28 @@ enum Cmd {
         #[arg(long)]
         threads: Option<usize>,
     },
+    /// Scan timesteps and cutoffs from an equilibrated state of a setup.
+    Tune {
+        /// The setup file (RON).
+        setup: PathBuf,
+        /// Timesteps to try, in the unit of the setup's `timestep` (default: 0.5, 1, 1.5, 2 and 3 times it).
+        #[arg(long, value_delimiter = ',')]
+        timesteps: Vec<f64>,
+        /// Cutoffs to try, in the unit of the setup's `cutoff` (default: 2 σ to 5 σ as the box allows).
+        #[arg(long, value_delimiter = ',')]
+        cutoffs: Vec<f64>,
+        /// Simulated time of each timestep trial, in τ.
+        #[arg(long, default_value_t = 5.0)]
+        time: f64,
+        /// Steps to equilibrate first (default: the setup's equilibration_steps).
+        #[arg(long)]
+        equilibrate: Option<u64>,
+        /// Write tuning.json into this folder.
+        #[arg(long)]
+        out: Option<PathBuf>,
+        #[arg(long)]
+        threads: Option<usize>,
+    },
     /// Measure speed and memory on the standard LJ liquid.
     Bench {
         /// Atom counts to measure, ascending.
@@ -97,6 +120,9 @@ enum Cmd {
         /// Write the results as JSON here too.
         #[arg(long)]
         json: Option<PathBuf>,
+        /// Also time the neighbour-list build and the force loop alone.
+        #[arg(long)]
+        stages: bool,
     },
 }
 
@@ -170,8 +196,21 @@ fn run_headless(cmd: Cmd) -> Result<(), RunError> {
             Ok(())
         }
         Cmd::Watch { .. } => unreachable!("the window handles watch"),
-        Cmd::Bench { atoms, steps, warmup, threads, json } => {
+        Cmd::Tune { setup, timesteps, cutoffs, time, equilibrate, out, threads } => {
             set_threads(threads)?;
+            tune(&setup, timesteps, cutoffs, time, equilibrate, out.as_deref())
+        }
+        Cmd::Bench { atoms, steps, warmup, threads, json, stages } => {
+            set_threads(threads)?;
+            if stages {
+                for &a in &atoms {
+                    let s = bench::measure_stages(a, 10);
+                    println!(
+                        "stages at {} atoms: list build {:.2} ms ({:.1} ns/atom), forces {:.2} ms ({:.1} ns/atom, {:.1} pairs/atom)",
+                        s.atoms, s.build_seconds * 1e3, s.build_seconds * 1e9 / a as f64, s.force_seconds * 1e3, s.force_seconds * 1e9 / a as f64, s.pairs_per_atom
+                    );
+                }
+            }
             let mut sorted = atoms.clone();
             sorted.sort_unstable();
             if let Some(&a) = sorted.iter().find(|&&a| !(500..=4_000_000).contains(&a)) {
@@ -212,6 +251,120 @@ fn parse_size(text: &str) -> Result<[f32; 2], String> {
         return Err(bad());
     }
     Ok([w, h])
+}
+
+/// Scales a unit-carrying setup value: the same variant with a new number.
+fn same_unit_duration(d: Duration, v: f64) -> Duration {
+    match d {
+        Duration::Femtoseconds(_) => Duration::Femtoseconds(v),
+        Duration::Picoseconds(_) => Duration::Picoseconds(v),
+        Duration::Reduced(_) => Duration::Reduced(v),
+    }
+}
+
+fn same_unit_length(l: Length, v: f64) -> Length {
+    match l {
+        Length::Sigma(_) => Length::Sigma(v),
+        Length::Angstrom(_) => Length::Angstrom(v),
+    }
+}
+
+fn duration_value(d: Duration) -> (f64, &'static str) {
+    match d {
+        Duration::Femtoseconds(v) => (v, "fs"),
+        Duration::Picoseconds(v) => (v, "ps"),
+        Duration::Reduced(v) => (v, "tau"),
+    }
+}
+
+fn tune(path: &Path, timesteps: Vec<f64>, cutoffs: Vec<f64>, time: f64, equilibrate: Option<u64>, out: Option<&Path>) -> Result<(), RunError> {
+    let bad = |e: noblescope::io::SetupError| RunError::BadInput(format!("{}: {e}", path.display()));
+    let setup = Setup::load(path).map_err(|e| RunError::BadInput(e.to_string()))?;
+    if !(time > 0.0 && time <= 1000.0) {
+        return Err(RunError::BadInput(format!("--time: {time} is out of range; allowed: 0 < time ≤ 1000 τ")));
+    }
+    let (dt0, dt_unit) = duration_value(setup.timestep);
+    let dts: Vec<f64> = if timesteps.is_empty() { [0.5, 1.0, 1.5, 2.0, 3.0].iter().map(|f| f * dt0).collect() } else { timesteps };
+    let mut reduced_dts = Vec::new();
+    for &v in &dts {
+        let mut s = setup.clone();
+        s.timestep = same_unit_duration(setup.timestep, v);
+        s.resolve().map_err(|e| RunError::BadInput(format!("--timesteps: {e}")))?;
+        reduced_dts.push(s.reduced_duration("timestep", s.timestep).map_err(bad)?);
+    }
+    let mut session = Session::new(setup.clone()).map_err(bad)?;
+    let spec = session.simulation().spec().clone();
+    let half_box = 0.5 * session.simulation().system().box_length;
+    let to_setup_len = |rc: f64| match setup.cutoff {
+        Length::Sigma(_) => rc,
+        Length::Angstrom(_) => rc * setup.units().sigma_angstrom(),
+    };
+    let reduced_cutoffs: Vec<f64> = if cutoffs.is_empty() {
+        [2.0, 2.5, 3.0, 3.5, 4.0, 5.0].into_iter().filter(|rc| rc + spec.skin <= half_box).collect()
+    } else {
+        let mut v = Vec::new();
+        for &c in &cutoffs {
+            let r = setup.reduced_length("cutoff", same_unit_length(setup.cutoff, c)).map_err(|e| RunError::BadInput(format!("--cutoffs: {e}")))?;
+            if !(1.0..=10.0).contains(&r) || r + spec.skin > half_box {
+                return Err(RunError::BadInput(format!("--cutoffs: {c} is out of range; allowed: 1 σ to 10 σ with cutoff + skin ≤ half the box ({half_box:.3} σ)")));
+            }
+            v.push(r);
+        }
+        v
+    };
+    let warm = equilibrate.unwrap_or(setup.equilibration_steps);
+    eprintln!("equilibrating {warm} steps ...");
+    for _ in 0..warm {
+        if let Some(a) = session.step().alarm
+            && matches!(a, noblescope::engine::Alarm::NonFinite { .. }) {
+                return Err(RunError::Failed(a.describe()));
+            }
+    }
+    let start = session.simulation().state();
+    let mut states = vec![start.clone()];
+    for _ in 0..4 {
+        for _ in 0..200 {
+            session.step();
+        }
+        states.push(session.simulation().state());
+    }
+    let rows = noblescope::engine::tuning::timestep_scan(&spec, &start, &reduced_dts, time);
+    println!("timestep scan: constant energy for {time} τ from the equilibrated state");
+    println!("{:>12} {:>12} {:>8} {:>16} {:>14} {:>12}", format!("dt [{dt_unit}]"), "dt [tau]", "steps", "drift/atom/tau", "rel. drift", "dE/dK rms");
+    for (r, v) in rows.iter().zip(&dts) {
+        if r.blew_up {
+            println!("{v:>12.5} {:>12.5} {:>8} {:>16}", r.timestep, r.steps, "blew up");
+        } else {
+            println!("{v:>12.5} {:>12.5} {:>8} {:>16.3e} {:>14.3e} {:>12.4}", r.timestep, r.steps, r.drift_per_atom_per_tau, r.relative_drift, r.fluctuation_ratio);
+        }
+    }
+    match noblescope::engine::tuning::recommended_timestep(&rows) {
+        Some(dt) => println!(
+            "largest timestep with total-energy fluctuation under {:.0}% of the kinetic: {:.5} {dt_unit} ({dt:.5} τ)",
+            noblescope::engine::tuning::FLUCTUATION_LIMIT * 100.0,
+            dts[reduced_dts.iter().position(|&x| x == dt).unwrap_or(0)]
+        ),
+        None => println!("no timestep tried conserved energy well enough: try smaller ones"),
+    }
+    if noblescope::engine::tuning::recommended_timestep(&rows) == reduced_dts.iter().copied().reduce(f64::max) {
+        println!("(that is the largest timestep tried: larger ones may pass too)");
+    }
+    let crow = noblescope::engine::tuning::cutoff_scan(&spec, &states, &reduced_cutoffs, spec.potential);
+    let len_unit = match setup.cutoff { Length::Sigma(_) => "sigma", Length::Angstrom(_) => "A" };
+    println!("cutoff scan: {:?}, averaged over {} configurations (reduced units)", spec.potential, states.len());
+    println!("{:>12} {:>12} {:>12} {:>16} {:>16}", format!("rc [{len_unit}]"), "U/N (mode)", "P (mode)", "U/N full est.", "P full est.");
+    for r in &crow {
+        println!("{:>12.4} {:>12.5} {:>12.5} {:>16.5} {:>16.5}", to_setup_len(r.cutoff), r.potential, r.pressure, r.potential_full_estimate, r.pressure_full_estimate);
+    }
+    println!("(full estimate: unshifted pair terms inside rc plus analytic tail corrections, g(r) = 1 beyond rc)");
+    if let Some(dir) = out {
+        std::fs::create_dir_all(dir).map_err(|e| RunError::BadInput(format!("--out: cannot create {}: {e}", dir.display())))?;
+        let json = serde_json::json!({ "setup": path.display().to_string(), "timesteps": rows, "cutoffs": crow,
+            "fluctuation_limit": noblescope::engine::tuning::FLUCTUATION_LIMIT, "caution": noblescope::io::summary::MODEL_CAUTION });
+        let file = dir.join("tuning.json");
+        std::fs::write(&file, serde_json::to_string_pretty(&json).unwrap_or_default()).map_err(|e| RunError::Failed(format!("{}: {e}", file.display())))?;
+    }
+    Ok(())
 }
 
 fn main() -> ExitCode {

@@ -64,6 +64,10 @@ pub fn detect_equilibration(x: &[f64], stride: usize) -> Equilibration {
     if n < 2 {
         return Equilibration { start: 0, inefficiency: 1.0, effective_samples: n as f64 };
     }
+    // A constant series: pymbar's special case (start 0, g = 1, one effective sample).
+    if x.iter().all(|&v| v == x[0]) {
+        return best;
+    }
     let mut t0 = 0;
     let mut first = true;
     while t0 < n - 1 {

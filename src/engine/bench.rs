@@ -70,3 +70,32 @@ pub fn measure(atoms: usize, warmup: u64, steps: u64) -> BenchResult {
         heap_bytes_per_atom: sim.heap_bytes() as f64 / atoms as f64,
     }
 }
+
+/// Time per call of the two expensive stages, measured alone on the standard liquid.
+#[derive(Clone, Debug, Serialize)]
+pub struct StageTimes {
+    pub atoms: usize,
+    /// Seconds per neighbour-list build.
+    pub build_seconds: f64,
+    /// Seconds per force evaluation.
+    pub force_seconds: f64,
+    /// Stored pairs per atom.
+    pub pairs_per_atom: f64,
+}
+
+/// Times `repeats` list builds and force evaluations on a melted standard liquid.
+pub fn measure_stages(atoms: usize, repeats: u32) -> StageTimes {
+    let mut sim = Simulation::new(standard_liquid(atoms)).expect("the benchmark spec is valid");
+    sim.run(50).expect("the benchmark liquid is stable");
+    let t = Instant::now();
+    for _ in 0..repeats {
+        sim.refresh_list_only();
+    }
+    let build_seconds = t.elapsed().as_secs_f64() / repeats as f64;
+    let t = Instant::now();
+    for _ in 0..repeats {
+        sim.refresh_forces_only();
+    }
+    let force_seconds = t.elapsed().as_secs_f64() / repeats as f64;
+    StageTimes { atoms, build_seconds, force_seconds, pairs_per_atom: sim.neighbour_list().pairs() as f64 / atoms as f64 }
+}

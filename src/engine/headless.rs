@@ -55,14 +55,13 @@ pub fn check_output_dir(out: &Path, overwrite: bool) -> Result<(), RunError> {
     if out.exists() && !out.is_dir() {
         return Err(RunError::BadInput(format!("--out: {} exists and is not a folder; choose a folder", out.display())));
     }
-    if !overwrite {
-        if let Some(f) = OUTPUT_FILES.iter().find(|f| out.join(f).exists()) {
+    if !overwrite
+        && let Some(f) = OUTPUT_FILES.iter().find(|f| out.join(f).exists()) {
             return Err(RunError::BadInput(format!(
                 "--out: {} already holds a run ({f}); choose another folder or pass --overwrite",
                 out.display()
             )));
         }
-    }
     Ok(())
 }
 
@@ -116,13 +115,12 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
             }
         }
         let step = session.simulation().step_count();
-        if let (Some(t), Some(k)) = (traj.as_mut(), setup.trajectory_every) {
-            if step % k == 0 {
+        if let (Some(t), Some(k)) = (traj.as_mut(), setup.trajectory_every)
+            && step.is_multiple_of(k) {
                 let sim = session.simulation();
                 trajectory::write_frame(t, sim.system(), &units, step, sim.time()).map_err(|e| io_err("trajectory.xyz", e))?;
             }
-        }
-        if step % 64 == 0 {
+        if step.is_multiple_of(64) {
             bar.set_position(step - start_step);
         }
     }

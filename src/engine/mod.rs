@@ -8,6 +8,7 @@ pub mod protocol;
 pub mod rewind;
 pub mod runner;
 pub mod session;
+pub mod tuning;
 pub mod watchdog;
 
 pub use frame::{Frame, FrameMailbox};

@@ -23,7 +23,7 @@ impl RewindBuffer {
 
     /// Whether a snapshot is due at `step`.
     pub fn due(&self, step: u64) -> bool {
-        step % self.every == 0 && self.snapshots.back().is_none_or(|s| s.step != step)
+        step.is_multiple_of(self.every) && self.snapshots.back().is_none_or(|s| s.step != step)
     }
 
     /// Stores a snapshot, dropping the oldest beyond capacity.

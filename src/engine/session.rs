@@ -75,7 +75,7 @@ impl Session {
             return StepOutcome { sample: None, alarm: Some(Watchdog::blowup(&b)) };
         }
         let mut out = StepOutcome::default();
-        if self.sim.step_count() % self.setup.sample_every == 0 {
+        if self.sim.step_count().is_multiple_of(self.setup.sample_every) {
             let o = self.sim.observe();
             out.alarm = self.watchdog.check(&self.sim, &o);
             out.sample = Some(o);

@@ -32,7 +32,8 @@ impl Watchdog {
             return Some(Alarm::NonFinite { step: o.step, atoms: sim.strongest_forces(8) });
         }
         let f = sim.max_force();
-        if !(f <= self.force_limit) {
+        // Written so that a NaN force also trips the alarm.
+        if f.is_nan() || f > self.force_limit {
             return Some(Alarm::HugeForce { step: o.step, force: f, atoms: sim.strongest_forces(4) });
         }
         if o.drift.abs() > self.drift_limit {

@@ -1,8 +1,9 @@
 //! Checkpoints: the exact state of a run, written atomically.
 //!
 //! Layout (all integers little-endian):
-//! `NOBLESCOPE-STATE 1\n`, u64 header length, a JSON header (setup, spec, scalars), then the raw
-//! arrays — types (u8 × N), positions, velocities, list reference positions (f64 × 3N each) —
+//! `NOBLESCOPE-STATE 2\n`, u64 header length, a JSON header (setup, spec, scalars), then the raw
+//! arrays — types (u8 × N), positions and velocities (f64 × 3N each), list reference positions
+//! (f32 × 3N) —
 //! and an FNV-1a 64 checksum of everything before it. Floats are stored as their bits, so a
 //! continued run is bit-for-bit the run that was saved.
 
@@ -12,7 +13,9 @@ use serde::{Deserialize, Serialize};
 use std::io::Write;
 use std::path::Path;
 
-const MAGIC: &[u8] = b"NOBLESCOPE-STATE 1\n";
+const MAGIC: &[u8] = b"NOBLESCOPE-STATE 2\n";
+/// Type, position, velocity and list reference of one atom.
+const BYTES_PER_ATOM: usize = 1 + 24 + 24 + 12;
 
 /// What a checkpoint holds.
 #[derive(Clone, Debug, PartialEq)]
@@ -74,16 +77,21 @@ impl Checkpoint {
         };
         let json = serde_json::to_vec(&header).expect("header serialises");
         let n = s.positions.len();
-        let mut out = Vec::with_capacity(MAGIC.len() + 8 + json.len() + n * 73 + 8);
+        let mut out = Vec::with_capacity(MAGIC.len() + 8 + json.len() + n * BYTES_PER_ATOM + 8);
         out.extend_from_slice(MAGIC);
         out.extend_from_slice(&(json.len() as u64).to_le_bytes());
         out.extend_from_slice(&json);
         out.extend_from_slice(&s.types);
-        for arr in [&s.positions, &s.velocities, &s.list_reference] {
+        for arr in [&s.positions, &s.velocities] {
             for v in arr.iter() {
                 for x in v {
                     out.extend_from_slice(&x.to_bits().to_le_bytes());
                 }
+            }
+        }
+        for v in &s.list_reference {
+            for x in v {
+                out.extend_from_slice(&x.to_bits().to_le_bytes());
             }
         }
         let sum = fnv1a(&out);
@@ -104,13 +112,13 @@ impl Checkpoint {
         let mut at = MAGIC.len();
         let hlen = u64::from_le_bytes(body[at..at + 8].try_into().unwrap()) as usize;
         at += 8;
-        if at + hlen > body.len() {
+        if hlen > body.len() - at {
             return Err(bad("header length beyond the end"));
         }
         let header: Header = serde_json::from_slice(&body[at..at + hlen]).map_err(|e| bad(&e.to_string()))?;
         at += hlen;
         let n = header.atoms;
-        if body.len() - at != n + 3 * 24 * n {
+        if n.checked_mul(BYTES_PER_ATOM) != Some(body.len() - at) {
             return Err(bad("array sizes do not match the atom count"));
         }
         let types = body[at..at + n].to_vec();
@@ -128,7 +136,13 @@ impl Checkpoint {
         };
         let positions = read();
         let velocities = read();
-        let list_reference = read();
+        let list_reference = body[at..at + 12 * n]
+            .chunks_exact(12)
+            .map(|c| {
+                let f = |k: usize| f32::from_bits(u32::from_le_bytes(c[4 * k..4 * k + 4].try_into().unwrap()));
+                [f(0), f(1), f(2)]
+            })
+            .collect();
         let setup = Setup::parse(&header.setup_ron, &format!("{file} (embedded setup)")).map_err(|e| bad(&e.to_string()))?;
         Ok(Checkpoint {
             setup,

@@ -303,11 +303,10 @@ impl Setup {
         if self.equilibration_steps >= self.steps {
             return Err(SetupError::field("equilibration_steps", self.equilibration_steps, format!("0 to steps − 1 ({})", self.steps - 1)));
         }
-        if let Some(k) = self.trajectory_every {
-            if k == 0 {
+        if let Some(k) = self.trajectory_every
+            && k == 0 {
                 return Err(SetupError::field("trajectory_every", "Some(0)", "None or Some(n) with n ≥ 1"));
             }
-        }
         let shares: Vec<f64> = self.species.iter().map(|s| s.share).collect();
         let spec = SimulationSpec {
             kinds: self.species.iter().map(|s| s.kind).collect(),
@@ -380,15 +379,14 @@ fn in_range(field: &str, shown: String, v: f64, lo: f64, hi: f64, allowed: &str)
 /// Refuses atom counts whose arrays would not fit in the memory the machine has free.
 fn check_memory(atoms: u64) -> Result<(), SetupError> {
     let need = atoms.saturating_mul(BYTES_PER_ATOM_ESTIMATE);
-    if let Some(available) = available_memory_bytes() {
-        if need > available {
+    if let Some(available) = available_memory_bytes()
+        && need > available {
             return Err(SetupError::field(
                 "atoms",
                 format!("{atoms} (needs about {} MB)", need / 1_000_000),
                 format!("at most {} atoms with the {} MB of memory available now", available / BYTES_PER_ATOM_ESTIMATE, available / 1_000_000),
             ));
         }
-    }
     Ok(())
 }
 

@@ -10,22 +10,52 @@
 use super::parallel::SharedMut;
 use rayon::prelude::*;
 
+/// Atoms per storage chunk of the list; each chunk is built by one task, in one pass.
+const CHUNK_SHIFT: usize = 10;
+const CHUNK: usize = 1 << CHUNK_SHIFT;
+
 /// Half neighbour list with its build positions and slab schedule.
 #[derive(Clone, Debug, Default)]
 pub struct NeighbourList {
     reach: f64,
     skin: f64,
-    /// `list[starts[i]..starts[i+1]]` are the partners owned by atom i.
-    starts: Vec<u32>,
-    list: Vec<u32>,
-    /// Positions at the last build, for the half-skin rebuild rule.
-    reference: Vec<[f64; 3]>,
+    /// Partner lists of atoms [k·CHUNK, (k+1)·CHUNK), concatenated.
+    chunks: Vec<Vec<u32>>,
+    /// End of atom i's partners within its chunk's list.
+    ends: Vec<u32>,
+    /// Positions at the last build, folded into the box and rounded to single precision. The
+    /// whole list is a function of these alone, so a checkpoint that stores them rebuilds the
+    /// identical list; they also serve the half-skin rebuild rule.
+    reference: Vec<[f32; 3]>,
     slab_starts: Vec<u32>,
     slab_atoms: Vec<u32>,
-    /// Cell-sort scratch, kept between builds.
+    /// Cell-sort scratch kept between builds: atoms by cell, and their folded positions in
+    /// single precision (the list search only needs to be conservative, see `build`).
     cell_starts: Vec<u32>,
     cell_atoms: Vec<u32>,
+    cell_pos: CellPositions,
+    /// For each cell, its 13 half-shell neighbour cells and the periodic shift to apply.
+    shell: Vec<ShellCell>,
+    shell_cells: usize,
+    shell_box: f64,
+    box_length: f64,
     builds: u64,
+}
+
+/// Folded positions in cell order, single precision, one array per axis (so the distance
+/// test over a cell vectorises).
+#[derive(Clone, Debug, Default)]
+struct CellPositions {
+    x: Vec<f32>,
+    y: Vec<f32>,
+    z: Vec<f32>,
+}
+
+/// One half-shell neighbour of a cell: its index and the box-edge shift of its image.
+#[derive(Clone, Copy, Debug, Default)]
+struct ShellCell {
+    cell: u32,
+    shift: [f32; 3],
 }
 
 /// The 13 forward cell offsets of the half shell (the other 13 are their negatives).
@@ -52,9 +82,26 @@ pub fn separation(a: &[f64; 3], b: &[f64; 3], l: f64, inv_l: f64) -> ([f64; 3], 
 }
 
 #[inline]
-fn cell_index(x: f64, l: f64, n: usize) -> usize {
-    let w = x - l * (x / l).floor();
-    ((w / l * n as f64) as isize).clamp(0, n as isize - 1) as usize
+fn fold(x: f64, l: f64) -> f64 {
+    x - l * (x / l).floor()
+}
+
+/// Bin of a folded coordinate among `n` equal bins of [0, l).
+#[inline]
+fn bin(x: f32, l: f64, n: usize) -> usize {
+    ((x as f64 / l * n as f64) as isize).clamp(0, n as isize - 1) as usize
+}
+
+/// Cell of a folded position.
+#[inline]
+fn cell_of(p: &[f32; 3], l: f64, cells: usize) -> usize {
+    (bin(p[0], l, cells) * cells + bin(p[1], l, cells)) * cells + bin(p[2], l, cells)
+}
+
+/// Extra reach that covers single-precision rounding of coordinates up to the box edge.
+#[inline]
+fn margin(l: f64) -> f64 {
+    1e-4 + l * 1e-6
 }
 
 impl NeighbourList {
@@ -83,20 +130,22 @@ impl NeighbourList {
         self.builds = builds;
     }
 
-    /// Positions at the last build.
-    pub fn reference(&self) -> &[[f64; 3]] {
+    /// Folded single-precision positions at the last build.
+    pub fn reference(&self) -> &[[f32; 3]] {
         &self.reference
     }
 
     /// Number of stored pairs.
     pub fn pairs(&self) -> usize {
-        self.list.len()
+        self.chunks.iter().map(|c| c.len()).sum()
     }
 
-    /// Partners owned by atom `i`.
+    /// Partners owned by atom `i`. Every pair closer than r_c + skin at the last build is owned
+    /// by exactly one of its two atoms; a few pairs slightly beyond may be listed too.
     #[inline(always)]
     pub fn partners(&self, i: usize) -> &[u32] {
-        &self.list[self.starts[i] as usize..self.starts[i + 1] as usize]
+        let lo = if i & (CHUNK - 1) == 0 { 0 } else { self.ends[i - 1] as usize };
+        &self.chunks[i >> CHUNK_SHIFT][lo..self.ends[i] as usize]
     }
 
     /// Number of slabs in the force schedule (1, or a multiple of 3).
@@ -112,9 +161,10 @@ impl NeighbourList {
 
     /// Bytes held by the list and its scratch (for memory accounting).
     pub fn heap_bytes(&self) -> usize {
-        4 * (self.starts.capacity() + self.list.capacity() + self.slab_starts.capacity()
+        4 * (self.chunks.iter().map(|c| c.capacity()).sum::<usize>() + self.ends.capacity() + self.slab_starts.capacity()
             + self.slab_atoms.capacity() + self.cell_starts.capacity() + self.cell_atoms.capacity())
-            + 24 * self.reference.capacity()
+            + 4 * (self.cell_pos.x.capacity() + self.cell_pos.y.capacity() + self.cell_pos.z.capacity())
+            + 12 * self.reference.capacity()
     }
 
     /// Whether some atom moved more than half the skin since the last build.
@@ -123,128 +173,217 @@ impl NeighbourList {
             return true;
         }
         let limit = 0.25 * self.skin * self.skin;
+        let (l, inv_l) = (self.box_length, 1.0 / self.box_length);
         positions.par_iter().zip(self.reference.par_iter()).with_min_len(1024).any(|(p, r)| {
-            let d = [p[0] - r[0], p[1] - r[1], p[2] - r[2]];
-            d[0] * d[0] + d[1] * d[1] + d[2] * d[2] > limit
+            let r = [r[0] as f64, r[1] as f64, r[2] as f64];
+            // Not finite (a blown-up run) also counts as moved.
+            let d2 = separation(p, &r, l, inv_l).1;
+            d2.is_nan() || d2 > limit
         })
     }
 
     /// Rebuilds the list from `positions` in a periodic cube of edge `box_length`.
     ///
-    /// The result depends only on the positions, never on the thread count. All positions must be
-    /// finite; the caller checks that first.
+    /// With three or more cells per edge the search runs over a cell list in single precision
+    /// with a margin of 1e-4 σ on the reach, so it may list a pair a hair beyond r_c + skin but
+    /// never misses one within it; the force loop tests r_c in double precision. The result
+    /// depends only on the positions, never on the thread count.
     pub fn build(&mut self, positions: &[[f64; 3]], box_length: f64) {
-        let n = positions.len();
         let l = box_length;
         self.reference.clear();
-        self.reference.extend_from_slice(positions);
+        self.reference.par_extend(positions.par_iter().map(|p| [fold(p[0], l) as f32, fold(p[1], l) as f32, fold(p[2], l) as f32]));
+        self.build_from_reference(l);
+    }
+
+    /// Rebuilds the list from saved folded reference positions (see [`NeighbourList::reference`]).
+    pub fn build_from(&mut self, reference: &[[f32; 3]], box_length: f64) {
+        self.reference.clear();
+        self.reference.extend_from_slice(reference);
+        self.build_from_reference(box_length);
+    }
+
+    fn build_from_reference(&mut self, l: f64) {
+        let n = self.reference.len();
+        self.box_length = l;
         self.builds += 1;
         let cells = (l / self.reach).floor() as usize;
-        let reach2 = self.reach * self.reach;
-        let inv_l = 1.0 / l;
-
-        // Pass 1: count partners per atom; pass 2: fill. Two passes keep the list exactly sized.
-        self.starts.clear();
-        self.starts.resize(n + 1, 0);
         if cells >= 3 {
-            self.sort_into_cells(positions, l, cells);
+            self.sort_into_cells(l, cells);
+            self.build_shell(cells, l);
         }
-        let this = &*self;
-        let counts: Vec<u32> = (0..n)
-            .into_par_iter()
-            .with_min_len(256)
-            .map(|i| {
-                let mut c = 0u32;
-                this.for_each_partner(positions, l, inv_l, reach2, cells, i, |_| c += 1);
-                c
-            })
-            .collect();
-        let mut total = 0u32;
-        for i in 0..n {
-            self.starts[i] = total;
-            total += counts[i];
-        }
-        self.starts[n] = total;
-        drop(counts);
-        let total = total as usize;
-        if self.list.capacity() < total {
-            self.list.reserve_exact(total - self.list.len());
-        }
-        self.list.resize(total, 0);
-        let out = SharedMut(self.list.as_mut_ptr());
-        let this = &*self;
-        (0..n).into_par_iter().with_min_len(256).for_each(|i| {
-            let mut k = this.starts[i] as usize;
-            this.for_each_partner(positions, l, inv_l, reach2, cells, i, |j| {
-                // SAFETY: atom i alone writes its own range starts[i]..starts[i+1].
-                unsafe { *out.at(k) = j };
-                k += 1;
-            });
+        self.ends.clear();
+        self.ends.resize(n, 0);
+        let chunk_count = n.div_ceil(CHUNK);
+        self.chunks.resize_with(chunk_count, Vec::new);
+        self.chunks.truncate(chunk_count);
+        let ends = SharedMut(self.ends.as_mut_ptr());
+        let positions = &self.reference;
+        let grid = Grid { l, cells, reach: self.reach, starts: &self.cell_starts, atoms: &self.cell_atoms, pos: &self.cell_pos, shell: &self.shell };
+        // Expected partners per atom of a uniform fluid, (2/3)π ρ reach³, with 5% to spare: the
+        // first build reserves near the final size instead of growing step by step.
+        let uniform = 2.0 / 3.0 * std::f64::consts::PI * n as f64 / (l * l * l) * self.reach.powi(3);
+        let per_atom = (uniform * 1.05).ceil() as usize + 2;
+        self.chunks.par_iter_mut().enumerate().for_each(|(k, list)| {
+            let atoms = ((k + 1) * CHUNK).min(n) - k * CHUNK;
+            let expected = if list.is_empty() { atoms * per_atom } else { list.len() + list.len() / 32 + 32 };
+            list.clear();
+            if list.capacity() < expected {
+                list.reserve_exact(expected);
+            }
+            for i in k * CHUNK..((k + 1) * CHUNK).min(n) {
+                if cells >= 3 {
+                    grid.partners(positions, i, list);
+                } else {
+                    brute_partners(positions, l, grid.reach, i, list);
+                }
+                // SAFETY: chunk k alone writes the ends of its own atoms.
+                unsafe { *ends.at(i) = list.len() as u32 };
+            }
         });
-        self.build_slabs(positions, l);
+        self.build_slabs(l);
     }
 
-    /// Calls `f(j)` for every partner j owned by atom i, in a fixed order.
-    #[inline]
-    #[allow(clippy::too_many_arguments)]
-    fn for_each_partner<F: FnMut(u32)>(
-        &self,
-        pos: &[[f64; 3]],
-        l: f64,
-        inv_l: f64,
-        reach2: f64,
-        cells: usize,
-        i: usize,
-        mut f: F,
-    ) {
-        let pi = &pos[i];
-        if cells < 3 {
-            for (j, pj) in pos.iter().enumerate().skip(i + 1) {
-                if separation(pi, pj, l, inv_l).1 < reach2 {
-                    f(j as u32);
-                }
-            }
+    /// Counting sort of atom indices by cell (stable: ascending within each cell), with the
+    /// folded positions stored alongside in cell order.
+    fn sort_into_cells(&mut self, l: f64, cells: usize) {
+        let pos = &self.reference;
+        counting_sort(pos.len(), cells * cells * cells, |i| cell_of(&pos[i], l, cells), &mut self.cell_starts, &mut self.cell_atoms);
+        let cp = &mut self.cell_pos;
+        for v in [&mut cp.x, &mut cp.y, &mut cp.z] {
+            v.clear();
+        }
+        for &j in &self.cell_atoms {
+            let p = pos[j as usize];
+            cp.x.push(p[0]);
+            cp.y.push(p[1]);
+            cp.z.push(p[2]);
+        }
+    }
+
+    /// Fills the half-shell neighbour table of every cell (once per box and cell count).
+    fn build_shell(&mut self, cells: usize, l: f64) {
+        let total = cells * cells * cells;
+        if self.shell_cells == total && self.shell.len() == 13 * total && self.shell_box == l {
             return;
         }
-        let c = [cell_index(pi[0], l, cells), cell_index(pi[1], l, cells), cell_index(pi[2], l, cells)];
-        let own = (c[0] * cells + c[1]) * cells + c[2];
-        // Same cell: partners listed after i (cells keep ascending atom order).
-        for &j in self.cell(own) {
-            if j as usize > i && separation(pi, &pos[j as usize], l, inv_l).1 < reach2 {
-                f(j);
-            }
-        }
+        self.shell.clear();
         let nc = cells as i32;
-        for off in &HALF_SHELL {
-            let x = (c[0] as i32 + off[0]).rem_euclid(nc) as usize;
-            let y = (c[1] as i32 + off[1]).rem_euclid(nc) as usize;
-            let z = (c[2] as i32 + off[2]).rem_euclid(nc) as usize;
-            for &j in self.cell((x * cells + y) * cells + z) {
-                if separation(pi, &pos[j as usize], l, inv_l).1 < reach2 {
-                    f(j);
+        let lf = l as f32;
+        for c in 0..total {
+            let here = [(c / (cells * cells)) as i32, ((c / cells) % cells) as i32, (c % cells) as i32];
+            for off in &HALF_SHELL {
+                let mut shift = [0f32; 3];
+                let mut idx = [0usize; 3];
+                for a in 0..3 {
+                    let x = here[a] + off[a];
+                    // A neighbour across a face: its atoms are seen one box edge away.
+                    shift[a] = if x >= nc { lf } else if x < 0 { -lf } else { 0.0 };
+                    idx[a] = x.rem_euclid(nc) as usize;
                 }
+                self.shell.push(ShellCell { cell: ((idx[0] * cells + idx[1]) * cells + idx[2]) as u32, shift });
             }
         }
+        self.shell_cells = total;
+        self.shell_box = l;
     }
 
-    #[inline]
-    fn cell(&self, c: usize) -> &[u32] {
-        &self.cell_atoms[self.cell_starts[c] as usize..self.cell_starts[c + 1] as usize]
-    }
-
-    /// Counting sort of atom indices by cell (stable: ascending within each cell).
-    fn sort_into_cells(&mut self, pos: &[[f64; 3]], l: f64, cells: usize) {
-        let cell_of = |p: &[f64; 3]| {
-            (cell_index(p[0], l, cells) * cells + cell_index(p[1], l, cells)) * cells + cell_index(p[2], l, cells)
-        };
-        counting_sort(pos.len(), cells * cells * cells, |i| cell_of(&pos[i]), &mut self.cell_starts, &mut self.cell_atoms);
-    }
-
-    fn build_slabs(&mut self, pos: &[[f64; 3]], l: f64) {
+    fn build_slabs(&mut self, l: f64) {
         let fit = (l / self.reach).floor() as usize;
         let slabs = if fit >= 3 { fit - fit % 3 } else { 1 };
-        counting_sort(pos.len(), slabs, |i| cell_index(pos[i][2], l, slabs), &mut self.slab_starts, &mut self.slab_atoms);
+        let pos = &self.reference;
+        counting_sort(pos.len(), slabs, |i| bin(pos[i][2], l, slabs), &mut self.slab_starts, &mut self.slab_atoms);
     }
+}
+
+/// Appends the partners owned by atom i, all-pairs search (boxes under three cells per edge).
+fn brute_partners(pos: &[[f32; 3]], l: f64, reach: f64, i: usize, list: &mut Vec<u32>) {
+    let reach = reach + margin(l);
+    let reach2 = reach * reach;
+    let inv_l = 1.0 / l;
+    let wide = |p: &[f32; 3]| [p[0] as f64, p[1] as f64, p[2] as f64];
+    let pi = wide(&pos[i]);
+    for (j, pj) in pos.iter().enumerate().skip(i + 1) {
+        if separation(&pi, &wide(pj), l, inv_l).1 < reach2 {
+            push_tight(list, j as u32);
+        }
+    }
+}
+
+/// The cell list as the search sees it.
+struct Grid<'a> {
+    l: f64,
+    cells: usize,
+    reach: f64,
+    starts: &'a [u32],
+    atoms: &'a [u32],
+    pos: &'a CellPositions,
+    shell: &'a [ShellCell],
+}
+
+impl Grid<'_> {
+    /// Appends the partners owned by atom i: later atoms of its own cell, then the atoms of the
+    /// 13 forward cells of the half shell, each cell's periodic shift applied once.
+    /// (Measured: an AVX2 build of this search is slower than the baseline one, so there is
+    /// no dispatch here, unlike the force kernel.)
+    #[inline]
+    fn partners(&self, pos: &[[f32; 3]], i: usize, list: &mut Vec<u32>) {
+        let reach = self.reach + margin(self.l);
+        let reach2 = (reach * reach) as f32;
+        let own = cell_of(&pos[i], self.l, self.cells);
+        let (lo, hi) = (self.starts[own] as usize, self.starts[own + 1] as usize);
+        let slot = lo + self.atoms[lo..hi].iter().position(|&a| a as usize == i).expect("atom is in its own cell");
+        let pi = [self.pos.x[slot], self.pos.y[slot], self.pos.z[slot]];
+        self.scan(pi, slot + 1, hi, reach2, list);
+        for sc in &self.shell[13 * own..13 * own + 13] {
+            let c = sc.cell as usize;
+            let q = [pi[0] - sc.shift[0], pi[1] - sc.shift[1], pi[2] - sc.shift[2]];
+            self.scan(q, self.starts[c] as usize, self.starts[c + 1] as usize, reach2, list);
+        }
+    }
+
+    /// Appends the atoms in cell slots lo..hi that lie within √reach2 of `p`: distances for the
+    /// whole cell first (a loop the compiler vectorises), then a branch-free compaction.
+    #[inline(always)]
+    fn scan(&self, p: [f32; 3], lo: usize, hi: usize, reach2: f32, list: &mut Vec<u32>) {
+        const MAX: usize = 64;
+        let mut start = lo;
+        while start < hi {
+            let end = (start + MAX).min(hi);
+            let m = end - start;
+            let (xs, ys, zs) = (&self.pos.x[start..end], &self.pos.y[start..end], &self.pos.z[start..end]);
+            let mut inside = [0u32; MAX];
+            for k in 0..m {
+                let (dx, dy, dz) = (p[0] - xs[k], p[1] - ys[k], p[2] - zs[k]);
+                inside[k] = (dx * dx + dy * dy + dz * dz < reach2) as u32;
+            }
+            if list.capacity() - list.len() < m {
+                list.reserve_exact((list.len() / 8).max(m) + 64);
+            }
+            let atoms = &self.atoms[start..end];
+            let base = list.len();
+            // SAFETY: capacity for m more entries was reserved above; every slot written below
+            // base + m, and the length only covers slots that were written.
+            unsafe {
+                let out = list.as_mut_ptr().add(base);
+                let mut n = 0usize;
+                for k in 0..m {
+                    *out.add(n) = atoms[k];
+                    n += inside[k] as usize;
+                }
+                list.set_len(base + n);
+            }
+            start = end;
+        }
+    }
+}
+
+/// Pushes with growth of one eighth instead of doubling, to keep the list near its true size.
+#[inline(always)]
+fn push_tight(list: &mut Vec<u32>, a: u32) {
+    if list.len() == list.capacity() {
+        list.reserve_exact(list.len() / 8 + 64);
+    }
+    list.push(a);
 }
 
 /// Stable counting sort of 0..n into `bins` by `key`, written as CSR (`starts`, `items`).

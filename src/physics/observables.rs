@@ -15,7 +15,7 @@ pub struct Observables {
     /// Total energy minus the heat the thermostat took out; constant in exact dynamics.
     pub conserved: f64,
     pub temperature: f64,
-    /// Virial pressure plus the tail correction when enabled.
+    /// Virial pressure (N k_B T + W/3)/V plus the tail correction when enabled.
     pub pressure: f64,
     /// (E_cons − E_cons(0)) / max(|E_cons(0)|, K(0)): relative drift of the conserved energy.
     pub drift: f64,

@@ -143,8 +143,9 @@ pub struct SimulationState {
     pub types: Vec<u8>,
     pub positions: Vec<[f64; 3]>,
     pub velocities: Vec<[f64; 3]>,
-    /// Positions at the last neighbour-list build (the list is rebuilt from these).
-    pub list_reference: Vec<[f64; 3]>,
+    /// Folded single-precision positions at the last neighbour-list build (the list is rebuilt
+    /// from these, identically).
+    pub list_reference: Vec<[f32; 3]>,
     pub list_builds: u64,
     /// Energy the thermostat has added since step 0.
     pub heat: f64,
@@ -206,7 +207,7 @@ impl Simulation {
             masses: spec.masses(),
         };
         let mut sim = Self::assemble(spec, system);
-        sim.list.build(&state.list_reference, state.box_length);
+        sim.list.build_from(&state.list_reference, state.box_length);
         sim.list.set_builds(state.list_builds);
         sim.step = state.step;
         sim.time = state.time;
@@ -372,6 +373,16 @@ impl Simulation {
         self.compute_forces();
     }
 
+    /// Rebuilds only the neighbour list (benchmarking a stage alone).
+    pub fn refresh_list_only(&mut self) {
+        self.list.build(&self.system.positions, self.system.box_length);
+    }
+
+    /// Recomputes only the forces (benchmarking a stage alone).
+    pub fn refresh_forces_only(&mut self) {
+        self.compute_forces();
+    }
+
     fn compute_forces(&mut self) {
         let s = &mut self.system;
         self.sums = forces::compute(&s.positions, &s.types, s.box_length, &self.table, &self.list, &mut s.forces, &mut self.scratch);
@@ -522,6 +533,7 @@ impl Simulation {
         let v = self.system.volume();
         let e = k + u;
         let conserved = e - self.heat;
+        let temperature = 2.0 * k / self.spec.degrees_of_freedom();
         Observables {
             step: self.step,
             time: self.time,
@@ -529,8 +541,10 @@ impl Simulation {
             potential: u / n,
             total: e / n,
             conserved: conserved / n,
-            temperature: 2.0 * k / self.spec.degrees_of_freedom(),
-            pressure: (2.0 * k + self.sums.virial) / (3.0 * v) + self.tail_pressure,
+            temperature,
+            // P = (N k_B T + W/3) / V with the kinetic temperature T = 2K/dof: unbiased for
+            // the canonical pressure also when total momentum is fixed (dof = 3N − 3).
+            pressure: (n * temperature + self.sums.virial / 3.0) / v + self.tail_pressure,
             drift: (conserved - self.drift_origin) / self.drift_scale,
         }
     }

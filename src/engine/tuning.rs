@@ -1,0 +1,160 @@
+//! Timestep and cutoff tuning: short scans from one equilibrated state that show how well each
+//! timestep conserves energy and how far each cutoff is from converged energy and pressure.
+
+use crate::physics::{PotentialMode, Simulation, SimulationSpec, SimulationState, Thermostat};
+use serde::Serialize;
+
+/// How one timestep fared over a short constant-energy run.
+#[derive(Clone, Debug, Serialize)]
+pub struct TimestepRow {
+    /// Timestep in τ.
+    pub timestep: f64,
+    pub steps: u64,
+    /// Slope of the total energy per atom, ε per τ (least squares).
+    pub drift_per_atom_per_tau: f64,
+    /// (E_end − E_start)/max(|E₀|, K₀).
+    pub relative_drift: f64,
+    /// RMS fluctuation of the total energy over that of the kinetic energy.
+    pub fluctuation_ratio: f64,
+    /// Energy became non-finite.
+    pub blew_up: bool,
+}
+
+/// Energy and pressure at one cutoff, averaged over configurations.
+#[derive(Clone, Debug, Serialize)]
+pub struct CutoffRow {
+    /// Cutoff in σ.
+    pub cutoff: f64,
+    /// Potential energy per atom and pressure as a run in the chosen mode reports them (no tail).
+    pub potential: f64,
+    pub pressure: f64,
+    /// Estimates for the full, untruncated potential: unshifted pair energies and virial
+    /// inside r_c plus the analytic tail corrections.
+    pub potential_full_estimate: f64,
+    pub pressure_full_estimate: f64,
+}
+
+/// Largest ratio of total-energy to kinetic-energy fluctuation accepted for a timestep
+/// (common practice: a few per cent).
+pub const FLUCTUATION_LIMIT: f64 = 0.05;
+
+/// Runs constant-energy dynamics from `state` for `duration` τ at each timestep.
+pub fn timestep_scan(spec: &SimulationSpec, state: &SimulationState, timesteps: &[f64], duration: f64) -> Vec<TimestepRow> {
+    timesteps
+        .iter()
+        .map(|&dt| {
+            let mut s = spec.clone();
+            s.timestep = dt;
+            s.thermostat = Thermostat::None;
+            let mut st = state.clone();
+            st.heat = 0.0;
+            let steps = ((duration / dt).round() as u64).max(10);
+            let every = (steps / 200).max(1);
+            let mut row = TimestepRow { timestep: dt, steps, drift_per_atom_per_tau: f64::NAN, relative_drift: f64::NAN, fluctuation_ratio: f64::NAN, blew_up: false };
+            let Ok(mut sim) = Simulation::from_state(s, st) else {
+                row.blew_up = true;
+                return row;
+            };
+            sim.rebase_drift();
+            let (mut t, mut e, mut k) = (vec![0.0], vec![sim.observe().total], vec![sim.observe().kinetic]);
+            let mut taken = 0;
+            while taken < steps {
+                if sim.run(every).is_err() {
+                    row.blew_up = true;
+                    return row;
+                }
+                taken += every;
+                let o = sim.observe();
+                if !o.total.is_finite() {
+                    row.blew_up = true;
+                    return row;
+                }
+                t.push(taken as f64 * dt);
+                e.push(o.total);
+                k.push(o.kinetic);
+            }
+            row.steps = taken;
+            row.drift_per_atom_per_tau = slope(&t, &e);
+            row.relative_drift = sim.observe().drift;
+            row.fluctuation_ratio = rms(&e) / rms(&k).max(f64::MIN_POSITIVE);
+            row
+        })
+        .collect()
+}
+
+/// Largest timestep whose run did not blow up and stayed under [`FLUCTUATION_LIMIT`].
+pub fn recommended_timestep(rows: &[TimestepRow]) -> Option<f64> {
+    rows.iter().filter(|r| !r.blew_up && r.fluctuation_ratio <= FLUCTUATION_LIMIT).map(|r| r.timestep).fold(None, |a, b| Some(a.map_or(b, |a: f64| a.max(b))))
+}
+
+/// Evaluates energy and pressure at each cutoff for each configuration and averages them, as
+/// the chosen mode reports them and as estimates of the full potential.
+/// Cutoffs whose cutoff + skin exceeds half the box are left out.
+pub fn cutoff_scan(spec: &SimulationSpec, states: &[SimulationState], cutoffs: &[f64], mode: PotentialMode) -> Vec<CutoffRow> {
+    let mut rows = Vec::new();
+    for &rc in cutoffs {
+        let mut acc = [0.0; 4];
+        let mut ok = true;
+        for st in states {
+            let mut s = spec.clone();
+            s.cutoff = rc;
+            s.potential = mode;
+            s.tail_correction = false;
+            let Ok(mut sim) = Simulation::from_state(s, st.clone()) else {
+                ok = false;
+                break;
+            };
+            let bare = sim.observe();
+            if sim.set_interaction(rc, spec.skin, PotentialMode::Truncated, true).is_err() {
+                ok = false;
+                break;
+            }
+            let tail = sim.observe();
+            acc[0] += bare.potential;
+            acc[1] += tail.potential;
+            acc[2] += bare.pressure;
+            acc[3] += tail.pressure;
+        }
+        if ok && !states.is_empty() {
+            let n = states.len() as f64;
+            rows.push(CutoffRow { cutoff: rc, potential: acc[0] / n, potential_full_estimate: acc[1] / n, pressure: acc[2] / n, pressure_full_estimate: acc[3] / n });
+        }
+    }
+    rows
+}
+
+fn mean(x: &[f64]) -> f64 {
+    x.iter().sum::<f64>() / x.len() as f64
+}
+
+fn rms(x: &[f64]) -> f64 {
+    let m = mean(x);
+    (x.iter().map(|v| (v - m).powi(2)).sum::<f64>() / x.len() as f64).sqrt()
+}
+
+/// Least-squares slope of y over t.
+fn slope(t: &[f64], y: &[f64]) -> f64 {
+    let (mt, my) = (mean(t), mean(y));
+    let num: f64 = t.iter().zip(y).map(|(a, b)| (a - mt) * (b - my)).sum();
+    let den: f64 = t.iter().map(|a| (a - mt).powi(2)).sum();
+    num / den
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn slope_and_rms_of_known_series() {
+        let t = [0.0, 1.0, 2.0, 3.0];
+        assert!((slope(&t, &[1.0, 3.0, 5.0, 7.0]) - 2.0).abs() < 1e-12);
+        assert!((rms(&[1.0, -1.0, 1.0, -1.0]) - 1.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn recommendation_skips_blow_ups_and_noisy_steps() {
+        let row = |dt, ratio, blew_up| TimestepRow { timestep: dt, steps: 1, drift_per_atom_per_tau: 0.0, relative_drift: 0.0, fluctuation_ratio: ratio, blew_up };
+        let rows = [row(0.002, 0.01, false), row(0.005, 0.03, false), row(0.01, 0.2, false), row(0.02, f64::NAN, true)];
+        assert_eq!(recommended_timestep(&rows), Some(0.005));
+    }
+}
