@@ -6,9 +6,10 @@
 //! - [`analysis`]: statistics over samples (block averages, equilibration detection);
 //! - [`io`]: every byte in or out (setup files, checkpoints, CSV, XYZ, summaries);
 //! - [`engine`]: the simulation thread and the headless runner, one pipeline for both;
-//! - `ui` (binary side): the desktop window, which only draws and sends commands.
+//! - [`ui`]: the desktop window, which only draws and sends commands.
 
 pub mod analysis;
 pub mod engine;
 pub mod io;
 pub mod physics;
+pub mod ui;

@@ -56,6 +56,32 @@ enum Cmd {
         #[command(flatten)]
         run: RunFlags,
     },
+    /// Open the window on a setup file; with --frames, run a scripted watch and exit.
+    Watch {
+        /// The setup file (RON).
+        setup: PathBuf,
+        /// Start running at once.
+        #[arg(long)]
+        run: bool,
+        /// Close after this many displayed frames (scripted mode).
+        #[arg(long)]
+        frames: Option<u32>,
+        /// Write a JSON report (frame times, atom-steps per second while displayed) here.
+        #[arg(long)]
+        report: Option<PathBuf>,
+        /// Save a PNG picture of the window here before closing.
+        #[arg(long)]
+        screenshot: Option<PathBuf>,
+        /// What to show first.
+        #[arg(long, value_enum)]
+        view: Option<noblescope::ui::watch::StartView>,
+        /// Window size in points, e.g. 1440x900.
+        #[arg(long, value_parser = parse_size)]
+        size: Option<[f32; 2]>,
+        /// Worker threads for the force loop (default: all cores).
+        #[arg(long)]
+        threads: Option<usize>,
+    },
     /// Scan timesteps and cutoffs from an equilibrated state of a setup.
     Tune {
         /// The setup file (RON).
@@ -170,6 +196,7 @@ fn run_headless(cmd: Cmd) -> Result<(), RunError> {
             let session = Session::from_checkpoint(c).map_err(|e| RunError::BadInput(format!("{}: {e}", checkpoint.display())))?;
             run_to_end(session, false, out, threads, &run)
         }
+        Cmd::Watch { .. } => unreachable!("the window handles watch"),
         Cmd::Tune { setup, timesteps, cutoffs, time, equilibrate, out, threads } => {
             set_threads(threads)?;
             tune(&setup, timesteps, cutoffs, time, equilibrate, out.as_deref())
@@ -214,6 +241,17 @@ fn run_headless(cmd: Cmd) -> Result<(), RunError> {
             Ok(())
         }
     }
+}
+
+fn parse_size(text: &str) -> Result<[f32; 2], String> {
+    let bad = || format!("--size: \"{text}\" is not a size; allowed: WIDTHxHEIGHT with each from 400 to 8000, e.g. 1440x900");
+    let (w, h) = text.split_once(['x', 'X']).ok_or_else(bad)?;
+    let w: f32 = w.trim().parse().map_err(|_| bad())?;
+    let h: f32 = h.trim().parse().map_err(|_| bad())?;
+    if !(400.0..=8000.0).contains(&w) || !(400.0..=8000.0).contains(&h) {
+        return Err(bad());
+    }
+    Ok([w, h])
 }
 
 /// Scales a unit-carrying setup value: the same variant with a new number.
@@ -333,13 +371,51 @@ fn tune(path: &Path, timesteps: Vec<f64>, cutoffs: Vec<f64>, time: f64, equilibr
 fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {
-        None => match open_window() {
+        None => match set_threads(Some(window_threads())).map_err(|e| anyhow::anyhow!("{e}")).and_then(|_| open_window(None)) {
             Ok(()) => ExitCode::SUCCESS,
             Err(e) => {
                 eprintln!("error: {e:#}");
                 ExitCode::from(1)
             }
         },
+        Some(Cmd::Watch { setup, run, frames, report, screenshot, view, size, threads }) => {
+            if let Err(e) = set_threads(Some(threads.unwrap_or_else(window_threads))) {
+                eprintln!("error: {e}");
+                return ExitCode::from(e.exit_code() as u8);
+            }
+            if frames == Some(0) {
+                eprintln!("error: --frames: 0 is out of range; allowed: 1 to 4294967295");
+                return ExitCode::from(2);
+            }
+            let parsed = match Setup::load(&setup) {
+                Ok(s) => s,
+                Err(e) => {
+                    eprintln!("error: {e}");
+                    return ExitCode::from(2);
+                }
+            };
+            if let Err(e) = parsed.resolve() {
+                eprintln!("error: {}: {e}", setup.display());
+                return ExitCode::from(2);
+            }
+            for note in parsed.cautions() {
+                eprintln!("caution: {note}");
+            }
+            let scripted = frames.is_some();
+            let opts = noblescope::ui::StartOptions {
+                setup: Some((parsed, Some(setup))),
+                view,
+                watch: Some(noblescope::ui::watch::WatchPlan { run, frames, report, screenshot }),
+                persist: !scripted,
+            };
+            match open_window(Some((opts, size))) {
+                Ok(()) => ExitCode::SUCCESS,
+                Err(e) => {
+                    eprintln!("error: {e:#}");
+                    ExitCode::from(1)
+                }
+            }
+        }
         Some(cmd) => match run_headless(cmd) {
             Ok(()) => ExitCode::SUCCESS,
             Err(e) => {
@@ -350,6 +426,14 @@ fn main() -> ExitCode {
     }
 }
 
-fn open_window() -> anyhow::Result<()> {
-    anyhow::bail!("the window is not built into this binary yet")
+/// Force-loop threads while the window is open: all cores but one, which stays free for
+/// drawing (software OpenGL draws on the CPU).
+fn window_threads() -> usize {
+    std::thread::available_parallelism().map(|n| n.get()).unwrap_or(2).saturating_sub(1).max(1)
+}
+
+/// Opens the window: on the given options, or on the remembered (else bundled) setup.
+fn open_window(with: Option<(noblescope::ui::StartOptions, Option<[f32; 2]>)>) -> anyhow::Result<()> {
+    let (opts, size) = with.unwrap_or_else(|| (noblescope::ui::StartOptions { persist: true, ..Default::default() }, None));
+    noblescope::ui::window::run(opts, size)
 }

@@ -1,0 +1,81 @@
+#!/usr/bin/env bash
+# Opens the real window under Xvfb with Mesa's software OpenGL (llvmpipe), in scripted watch
+# mode, for each view; writes PNGs and JSON reports into screenshots/ and fails (non-zero exit)
+# on a missing or blank picture or a report without frames. Also measures the 32 000-atom 3D
+# view against the headless benchmark.
+#
+# Uses $DISPLAY if set, else starts its own Xvfb. Needs: Xvfb, Mesa (llvmpipe), python3.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+
+target="${CARGO_TARGET_DIR:-target}"
+bin="$target/release/noblescope"
+if [[ ! -x "$bin" || "${SKIP_BUILD:-0}" != 1 ]]; then
+    cargo build --release --quiet
+fi
+out=screenshots
+mkdir -p "$out"
+
+xvfb_pid=""
+cleanup() { if [[ -n "$xvfb_pid" ]]; then kill "$xvfb_pid" 2>/dev/null || true; fi; }
+trap cleanup EXIT
+if [[ -z "${DISPLAY:-}" ]]; then
+    for n in 97 98 99 100 101; do
+        if [[ ! -e /tmp/.X11-unix/X$n && ! -e /tmp/.X$n-lock ]]; then
+            Xvfb ":$n" -screen 0 1600x1000x24 -nolisten tcp >/dev/null 2>&1 &
+            xvfb_pid=$!
+            export DISPLAY=":$n"
+            break
+        fi
+    done
+    [[ -n "$xvfb_pid" ]] || { echo "no free X display number for Xvfb" >&2; exit 1; }
+    for _ in $(seq 50); do [[ -e "/tmp/.X11-unix/X${DISPLAY#:}" ]] && break; sleep 0.1; done
+fi
+# Software OpenGL; one rasteriser thread keeps a core free for the simulation.
+export LIBGL_ALWAYS_SOFTWARE=1 GALLIUM_DRIVER=llvmpipe LP_NUM_THREADS=1
+
+fail=0
+shot() { # name setup frames view [extra args...]
+    local name=$1 setup=$2 frames=$3 view=$4
+    shift 4
+    rm -f "$out/$name.png" "$out/$name.json"
+    if ! timeout 300 "$bin" watch "$setup" --run --frames "$frames" --view "$view" --size 1440x900 \
+        --report "$out/$name.json" --screenshot "$out/$name.png" "$@"; then
+        echo "FAIL: $name: the window exited with an error" >&2
+        fail=1
+        return
+    fi
+    python3 - "$out/$name.json" "$frames" <<'PY' || fail=1
+import json, sys
+r = json.load(open(sys.argv[1]))
+want = int(sys.argv[2])
+if r.get("frames", 0) < want:
+    sys.exit(f"FAIL: {sys.argv[1]}: {r.get('frames', 0)} frames measured, wanted {want}")
+print(f"ok: {sys.argv[1]}: {r['frames']} frames, p50 {r['frame_time_p50_ms']:.1f} ms, p95 {r['frame_time_p95_ms']:.1f} ms, "
+      f"max {r['frame_time_max_ms']:.1f} ms, {r['atom_steps_per_second']:.3e} atom-steps/s, {r['atoms']} atoms")
+PY
+}
+
+shot view-3d assets/krypton-getter-sample.ron 90 3d
+shot view-slab assets/krypton-getter-sample.ron 90 slab
+shot view-setup assets/krypton-getter-sample.ron 60 setup
+if [[ "${SKIP_PERF:-0}" != 1 ]]; then
+    shot perf-32k-3d assets/reduced-liquid-32k.ron 400 3d
+    "$bin" bench --atoms 32000 --json "$out/bench-32k.json" | tail -n 1
+    python3 - "$out/perf-32k-3d.json" "$out/bench-32k.json" <<'PY' || true
+import json, sys
+w = json.load(open(sys.argv[1]))
+b = json.load(open(sys.argv[2]))[0]
+print(f"32k atoms: displayed {w['atom_steps_per_second']:.3e} vs headless {b['atom_steps_per_second']:.3e} atom-steps/s "
+      f"= {100 * w['atom_steps_per_second'] / b['atom_steps_per_second']:.0f}%; frame p95 {w['frame_time_p95_ms']:.1f} ms")
+PY
+fi
+
+pngs=("$out"/view-3d.png "$out"/view-slab.png "$out"/view-setup.png)
+[[ "${SKIP_PERF:-0}" == 1 ]] || pngs+=("$out"/perf-32k-3d.png)
+python3 scripts/check_png.py "${pngs[@]}" || fail=1
+if [[ $fail != 0 ]]; then
+    echo "screenshots: FAILED" >&2
+    exit 1
+fi
+echo "screenshots: all pictures present and not blank"

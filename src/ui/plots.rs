@@ -1,0 +1,216 @@
+//! Live plots: conserved-energy drift, energies, temperature with its target, pressure.
+//!
+//! Samples are converted to display units once, on arrival (time in ps for real species, τ for
+//! the reduced fluid), and kept in bounded [`EnvelopeSeries`].
+
+use super::palette;
+use super::series::{EnvelopeSeries, ThinnedLog};
+use crate::physics::{Observables, UnitSystem};
+use egui_plot::{GridInput, GridMark, HLine, Legend, Line, Plot, PlotPoints};
+
+/// Grid marks at 1, 2 or 5 × 10ⁿ, about five labelled lines across the range, with fainter
+/// lines at a fifth of that step (the default powers-of-ten spacing leaves short plots with a
+/// single label).
+pub fn nice_grid(input: GridInput) -> Vec<GridMark> {
+    let (lo, hi) = input.bounds;
+    let span = hi - lo;
+    if !(span.is_finite() && span > 0.0) {
+        return Vec::new();
+    }
+    let raw = span / 5.0;
+    let mag = 10f64.powf(raw.log10().floor());
+    let step = [1.0, 2.0, 5.0, 10.0].into_iter().map(|m| m * mag).find(|s| *s >= raw).unwrap_or(10.0 * mag);
+    let minor = step / 5.0;
+    let mut marks = Vec::new();
+    let first = (lo / minor).ceil() as i64;
+    let last = (hi / minor).floor() as i64;
+    if last - first > 400 {
+        return marks;
+    }
+    for k in first..=last {
+        let value = k as f64 * minor;
+        let major = k.rem_euclid(5) == 0;
+        marks.push(GridMark { value, step_size: if major { step } else { minor } });
+    }
+    marks
+}
+
+/// Buckets per plotted series (each draws at most twice this many points).
+pub const BUCKETS: usize = 800;
+/// Raw samples kept for CSV export before thinning starts.
+pub const EXPORT_CAPACITY: usize = 200_000;
+
+/// Everything the plots show, plus the export log.
+pub struct Plots {
+    units: UnitSystem,
+    drift: EnvelopeSeries,
+    kinetic: EnvelopeSeries,
+    potential: EnvelopeSeries,
+    total: EnvelopeSeries,
+    temperature: EnvelopeSeries,
+    pressure: EnvelopeSeries,
+    /// Thermostat target in display units, if a thermostat runs.
+    target: Option<f64>,
+    log: ThinnedLog<Observables>,
+    last: Option<Observables>,
+}
+
+impl Plots {
+    /// Empty plots for a run in `units`.
+    pub fn new(units: UnitSystem) -> Self {
+        let s = || EnvelopeSeries::new(BUCKETS);
+        Plots {
+            units,
+            drift: s(),
+            kinetic: s(),
+            potential: s(),
+            total: s(),
+            temperature: s(),
+            pressure: s(),
+            target: None,
+            log: ThinnedLog::new(EXPORT_CAPACITY),
+            last: None,
+        }
+    }
+
+    /// Clears for a new run in `units` with the thermostat target `target` (reduced), if any.
+    pub fn restart(&mut self, units: UnitSystem, target: Option<f64>) {
+        *self = Plots::new(units);
+        self.set_target(target);
+    }
+
+    /// Sets the temperature target line (reduced value).
+    pub fn set_target(&mut self, target: Option<f64>) {
+        self.target = target.map(|t| t * self.temperature_factor());
+    }
+
+    fn real(&self) -> bool {
+        self.units.has_real_units()
+    }
+
+    fn time_factor(&self) -> f64 {
+        if self.real() { self.units.tau_ps() } else { 1.0 }
+    }
+
+    fn temperature_factor(&self) -> f64 {
+        if self.real() { self.units.temperature_kelvin() } else { 1.0 }
+    }
+
+    fn pressure_factor(&self) -> f64 {
+        if self.real() { self.units.pressure_bar() } else { 1.0 }
+    }
+
+    /// Time unit of the x axes.
+    pub fn time_unit(&self) -> &'static str {
+        if self.real() { "ps" } else { "τ" }
+    }
+
+    /// Adds one sample.
+    pub fn push(&mut self, o: &Observables) {
+        let t = o.time * self.time_factor();
+        self.drift.push(t, o.drift);
+        self.kinetic.push(t, o.kinetic);
+        self.potential.push(t, o.potential);
+        self.total.push(t, o.total);
+        self.temperature.push(t, o.temperature * self.temperature_factor());
+        self.pressure.push(t, o.pressure * self.pressure_factor());
+        self.log.push(*o);
+        self.last = Some(*o);
+    }
+
+    /// Samples received since the last restart.
+    pub fn samples(&self) -> u64 {
+        self.log.offered()
+    }
+
+    /// The newest sample.
+    pub fn last(&self) -> Option<&Observables> {
+        self.last.as_ref()
+    }
+
+    /// The export log and its stride (1 = every sample).
+    pub fn export_log(&self) -> (&[Observables], u64) {
+        (self.log.items(), self.log.stride())
+    }
+
+    /// Units of the run.
+    pub fn units(&self) -> UnitSystem {
+        self.units
+    }
+
+    /// Draws the four plots in a 2×2 grid filling the available space.
+    pub fn show(&mut self, ui: &mut egui::Ui) {
+        let tu = self.time_unit();
+        let (tunit, punit) = if self.real() { ("K", "bar") } else { ("kT/ε", "ε/σ³") };
+        let avail = ui.available_size();
+        let w = (avail.x - 8.0) / 2.0;
+        let h = ((avail.y - 8.0) / 2.0).max(90.0);
+        let target = self.target;
+        let link = ui.scope_id().with("time-axis");
+        let plot = |name: &str, ylabel: String| {
+            Plot::new(name.to_string())
+                .width(w)
+                .height(h)
+                .x_axis_label(format!("time [{tu}]"))
+                .y_axis_label(ylabel)
+                .legend(Legend::default())
+                .link_axis(link, [true, false])
+                .link_cursor(link, [true, false])
+                .allow_scroll(false)
+                .y_axis_min_width(64.0)
+                .show_background(false)
+                .y_grid_spacer(nice_grid)
+        };
+        let Plots { drift, kinetic, potential, total, temperature, pressure, .. } = self;
+        ui.horizontal(|ui| {
+            plot("drift-plot", "relative drift [1]".into()).show(ui, |p| {
+                p.line(Line::new("conserved energy drift", PlotPoints::Borrowed(drift.points())).color(palette::SERIES[0]));
+            });
+            plot("energy-plot", "energy per atom [ε]".into()).show(ui, |p| {
+                p.line(Line::new("kinetic", PlotPoints::Borrowed(kinetic.points())).color(palette::SERIES[1]));
+                p.line(Line::new("potential", PlotPoints::Borrowed(potential.points())).color(palette::SERIES[2]));
+                p.line(Line::new("total", PlotPoints::Borrowed(total.points())).color(palette::SERIES[3]));
+            });
+        });
+        ui.horizontal(|ui| {
+            plot("temperature-plot", format!("temperature [{tunit}]")).show(ui, |p| {
+                p.line(Line::new("temperature", PlotPoints::Borrowed(temperature.points())).color(palette::SERIES[4]));
+                if let Some(t) = target {
+                    p.hline(HLine::new("target", t).color(palette::TARGET).style(egui_plot::LineStyle::dashed_dense()));
+                }
+            });
+            plot("pressure-plot", format!("pressure [{punit}]")).show(ui, |p| {
+                p.line(Line::new("pressure", PlotPoints::Borrowed(pressure.points())).color(palette::SERIES[5]));
+            });
+        });
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::physics::Species;
+
+    #[test]
+    fn nice_grid_labels_about_five_round_values() {
+        let marks = nice_grid(GridInput { bounds: (-7.3, 1.2), base_step_size: 0.01 });
+        let majors: Vec<f64> = marks.iter().filter(|m| m.step_size == 2.0).map(|m| m.value).collect();
+        assert_eq!(majors, vec![-6.0, -4.0, -2.0, 0.0]);
+        assert!(marks.iter().any(|m| (m.value + 7.2).abs() < 1e-9 && m.step_size < 2.0));
+        assert!(nice_grid(GridInput { bounds: (1.0, 1.0), base_step_size: 0.1 }).is_empty());
+    }
+
+    #[test]
+    fn converts_to_display_units_on_arrival() {
+        let u = UnitSystem::new(Species::Argon);
+        let mut p = Plots::new(u);
+        p.set_target(Some(1.0));
+        p.push(&Observables { time: 2.0, temperature: 0.5, pressure: 1.0, ..Default::default() });
+        let pt = p.temperature.points()[0];
+        assert!((pt.x - 2.0 * u.tau_ps()).abs() < 1e-12);
+        assert!((pt.y - 0.5 * u.temperature_kelvin()).abs() < 1e-9);
+        assert!((p.target.unwrap() - u.temperature_kelvin()).abs() < 1e-9);
+        assert_eq!(p.time_unit(), "ps");
+        assert_eq!(Plots::new(UnitSystem::new(Species::ReducedLJ)).time_unit(), "τ");
+    }
+}

@@ -1,0 +1,99 @@
+//! The status line and the watchdog banner.
+
+use super::palette;
+use crate::engine::{Alarm, Status};
+use crate::physics::UnitSystem;
+
+/// What the status line shows.
+#[derive(Clone, Debug, Default)]
+pub struct StatusLine {
+    /// Latest engine status.
+    pub status: Status,
+    /// Latest unhandled watchdog alarm.
+    pub alarm: Option<Alarm>,
+    /// Latest message for the user (saved files, refused commands …) and whether it is an error.
+    pub message: Option<(String, bool)>,
+}
+
+/// Compact count: 12 345 → "12.3 k", 4.2e6 → "4.20 M".
+pub fn si_count(v: f64) -> String {
+    let a = v.abs();
+    if a >= 1e9 {
+        format!("{:.2} G", v / 1e9)
+    } else if a >= 1e6 {
+        format!("{:.2} M", v / 1e6)
+    } else if a >= 1e4 {
+        format!("{:.1} k", v / 1e3)
+    } else {
+        format!("{v:.0}")
+    }
+}
+
+impl StatusLine {
+    /// The status text: step, simulated time, steps/s, atom-steps/s, list rebuilds.
+    pub fn text(&self, units: UnitSystem) -> String {
+        let s = &self.status;
+        let time = if units.has_real_units() { format!("{:.3} ps ({:.2} τ)", s.time * units.tau_ps(), s.time) } else { format!("{:.3} τ", s.time) };
+        format!(
+            "{} · step {} · t = {} · {} steps/s · {} atom-steps/s · {} neighbour-list rebuilds",
+            if s.running { "running" } else { "paused" },
+            s.step,
+            time,
+            si_count(s.steps_per_second),
+            si_count(s.atom_steps_per_second),
+            s.list_builds
+        )
+    }
+
+    /// Draws the alarm banner if there is an alarm; returns true if Rewind was pressed.
+    pub fn alarm_banner(&mut self, ui: &mut egui::Ui) -> bool {
+        let Some(alarm) = &self.alarm else { return false };
+        let mut rewind = false;
+        let mut dismiss = false;
+        egui::Frame::new().fill(palette::ALARM).inner_margin(8.0).corner_radius(4.0).show(ui, |ui| {
+            ui.horizontal_wrapped(|ui| {
+                ui.colored_label(egui::Color32::WHITE, egui::RichText::new("Watchdog stopped the run:").strong());
+                ui.colored_label(egui::Color32::WHITE, alarm.describe());
+                rewind = ui.button("Rewind to the last safe state").clicked();
+                dismiss = ui.button("Dismiss").clicked();
+            });
+        });
+        if dismiss {
+            self.alarm = None;
+        }
+        rewind
+    }
+
+    /// Draws the status line and the latest message.
+    pub fn show(&self, ui: &mut egui::Ui, units: UnitSystem) {
+        ui.horizontal_wrapped(|ui| {
+            ui.monospace(self.text(units));
+            if let Some((m, error)) = &self.message {
+                ui.separator();
+                if *error {
+                    ui.colored_label(palette::ERROR_TEXT, m);
+                } else {
+                    ui.label(m);
+                }
+            }
+        });
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::physics::Species;
+
+    #[test]
+    fn status_text_names_every_rate() {
+        let line = StatusLine {
+            status: Status { running: true, step: 1200, time: 6.0, atoms: 4000, steps_per_second: 250.0, atom_steps_per_second: 1.0e6, list_builds: 17, snapshots: 2 },
+            ..Default::default()
+        };
+        let t = line.text(UnitSystem::new(Species::ReducedLJ));
+        assert!(t.contains("step 1200") && t.contains("6.000 τ") && t.contains("250 steps/s") && t.contains("1.00 M atom-steps/s") && t.contains("17 neighbour-list"), "{t}");
+        let real = line.text(UnitSystem::new(Species::Argon));
+        assert!(real.contains(" ps ("), "{real}");
+    }
+}
