@@ -127,13 +127,39 @@ enum Cmd {
 }
 
 fn set_threads(threads: Option<usize>) -> Result<usize, RunError> {
+    build_force_pool(threads, false)
+}
+
+/// Sets up the global force-loop thread pool. With `yield_to_window`, its threads run at a
+/// lower scheduling priority (nice 10) so the window's drawing threads get the cores first and
+/// the simulation takes whatever is left.
+fn build_force_pool(threads: Option<usize>, yield_to_window: bool) -> Result<usize, RunError> {
     if let Some(n) = threads {
         if n == 0 || n > 1024 {
             return Err(RunError::BadInput(format!("--threads: {n} is out of range; allowed: 1 to 1024")));
         }
-        rayon::ThreadPoolBuilder::new().num_threads(n).build_global().map_err(|e| RunError::Failed(e.to_string()))?;
+    }
+    if threads.is_some() || yield_to_window {
+        let mut b = rayon::ThreadPoolBuilder::new().thread_name(|i| format!("noblescope-force-{i}"));
+        if let Some(n) = threads {
+            b = b.num_threads(n);
+        }
+        if yield_to_window {
+            b = b.start_handler(|_| lower_this_thread_priority());
+        }
+        b.build_global().map_err(|e| RunError::Failed(e.to_string()))?;
     }
     Ok(rayon::current_num_threads())
+}
+
+/// nice +10 for the calling thread (Linux applies nice per thread).
+fn lower_this_thread_priority() {
+    #[cfg(target_os = "linux")]
+    // SAFETY: plain system calls on the calling thread's own id.
+    unsafe {
+        let tid = libc::syscall(libc::SYS_gettid) as libc::id_t;
+        libc::setpriority(libc::PRIO_PROCESS, tid, 10);
+    }
 }
 
 fn default_out(setup: &Path) -> PathBuf {
@@ -203,15 +229,6 @@ fn run_headless(cmd: Cmd) -> Result<(), RunError> {
         }
         Cmd::Bench { atoms, steps, warmup, threads, json, stages } => {
             set_threads(threads)?;
-            if stages {
-                for &a in &atoms {
-                    let s = bench::measure_stages(a, 10);
-                    println!(
-                        "stages at {} atoms: list build {:.2} ms ({:.1} ns/atom), forces {:.2} ms ({:.1} ns/atom, {:.1} pairs/atom)",
-                        s.atoms, s.build_seconds * 1e3, s.build_seconds * 1e9 / a as f64, s.force_seconds * 1e3, s.force_seconds * 1e9 / a as f64, s.pairs_per_atom
-                    );
-                }
-            }
             let mut sorted = atoms.clone();
             sorted.sort_unstable();
             if let Some(&a) = sorted.iter().find(|&&a| !(500..=4_000_000).contains(&a)) {
@@ -233,6 +250,15 @@ fn run_headless(cmd: Cmd) -> Result<(), RunError> {
                 let first = &results[0];
                 let last = &results[results.len() - 1];
                 println!("cost per atom-step at {} atoms / at {} atoms: {:.3}", last.atoms, first.atoms, last.nanoseconds_per_atom_step / first.nanoseconds_per_atom_step);
+            }
+            if stages {
+                for &a in &atoms {
+                    let s = bench::measure_stages(a, 10);
+                    println!(
+                        "stages at {} atoms: list build {:.2} ms ({:.1} ns/atom), forces {:.2} ms ({:.1} ns/atom, {:.1} pairs/atom)",
+                        s.atoms, s.build_seconds * 1e3, s.build_seconds * 1e9 / a as f64, s.force_seconds * 1e3, s.force_seconds * 1e9 / a as f64, s.pairs_per_atom
+                    );
+                }
             }
             if let Some(path) = json {
                 let text = serde_json::to_string_pretty(&results).map_err(|e| RunError::Failed(e.to_string()))?;
@@ -371,7 +397,7 @@ fn tune(path: &Path, timesteps: Vec<f64>, cutoffs: Vec<f64>, time: f64, equilibr
 fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {
-        None => match set_threads(Some(window_threads())).map_err(|e| anyhow::anyhow!("{e}")).and_then(|_| open_window(None)) {
+        None => match build_force_pool(None, true).map_err(|e| anyhow::anyhow!("{e}")).and_then(|_| open_window(None)) {
             Ok(()) => ExitCode::SUCCESS,
             Err(e) => {
                 eprintln!("error: {e:#}");
@@ -379,7 +405,7 @@ fn main() -> ExitCode {
             }
         },
         Some(Cmd::Watch { setup, run, frames, report, screenshot, view, size, threads }) => {
-            if let Err(e) = set_threads(Some(threads.unwrap_or_else(window_threads))) {
+            if let Err(e) = build_force_pool(threads, true) {
                 eprintln!("error: {e}");
                 return ExitCode::from(e.exit_code() as u8);
             }
@@ -426,11 +452,6 @@ fn main() -> ExitCode {
     }
 }
 
-/// Force-loop threads while the window is open: all cores but one, which stays free for
-/// drawing (software OpenGL draws on the CPU).
-fn window_threads() -> usize {
-    std::thread::available_parallelism().map(|n| n.get()).unwrap_or(2).saturating_sub(1).max(1)
-}
 
 /// Opens the window: on the given options, or on the remembered (else bundled) setup.
 fn open_window(with: Option<(noblescope::ui::StartOptions, Option<[f32; 2]>)>) -> anyhow::Result<()> {

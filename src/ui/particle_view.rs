@@ -69,6 +69,8 @@ pub struct ParticleView {
     /// Settings, frame step, atom count and view size the vertex buffer was last filled for.
     filled_for: Option<(ViewSettings, u64, usize, [u32; 2])>,
     culler: Culler,
+    /// View depth and index of the atoms kept by the culler, sorted nearest first.
+    order: Vec<(f32, u32)>,
     /// Upper end of the colour scale of the last fill (σ/τ or ε).
     scale_max: f32,
     shown: usize,
@@ -77,7 +79,7 @@ pub struct ParticleView {
 impl ParticleView {
     /// A view with the given settings.
     pub fn new(settings: ViewSettings) -> Self {
-        ParticleView { settings, renderer: SphereRenderer::new(), filled_for: None, culler: Culler::new(), scale_max: 1.0, shown: 0 }
+        ParticleView { settings, renderer: SphereRenderer::new(), filled_for: None, culler: Culler::new(), order: Vec::new(), scale_max: 1.0, shown: 0 }
     }
 
     /// The renderer (to free its GL objects on exit).
@@ -251,11 +253,21 @@ impl ParticleView {
                 };
                 let centre_depth = (view * Vec4::new(0.5 * l, 0.5 * l, 0.5 * l, 1.0)).z.abs().max(near);
                 let typical = frame.sigmas.first().copied().unwrap_or(1.0) * size * fy / centre_depth;
+                // Nearest first: the depth test then rejects hidden fragments before shading,
+                // which is most of the cost in software OpenGL.
+                let order = &mut self.order;
+                order.clear();
                 self.culler.run(frame.len(), w_px, h_px, 0.5 * typical, project, |i| {
+                    let p = frame.positions[i];
+                    order.push(((view * Vec4::new(p[0], p[1], p[2], 1.0)).z, i as u32));
+                });
+                order.sort_unstable_by(|a, b| b.0.total_cmp(&a.0));
+                for &(_, i) in order.iter() {
+                    let i = i as usize;
                     let p = frame.positions[i];
                     let c = colour(i);
                     v.extend_from_slice(&[p[0], p[1], p[2], radius(i), c[0], c[1], c[2]]);
-                });
+                }
             }
             ViewMode::Slab => {
                 self.settings.slab.select(frame, |i, x, y, d| {
