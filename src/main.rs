@@ -394,7 +394,19 @@ fn tune(path: &Path, timesteps: Vec<f64>, cutoffs: Vec<f64>, time: f64, equilibr
     Ok(())
 }
 
+/// Keeps glibc from raising its mmap threshold as large blocks are freed: the neighbour list's
+/// chunks then stay memory-mapped, grow and shrink by remapping, and give memory back at once,
+/// which keeps the resident size per atom near the arrays' own size.
+fn tune_allocator() {
+    #[cfg(all(target_os = "linux", target_env = "gnu"))]
+    // SAFETY: mallopt only changes allocator settings; called before any other thread starts.
+    unsafe {
+        libc::mallopt(libc::M_MMAP_THRESHOLD, 128 * 1024);
+    }
+}
+
 fn main() -> ExitCode {
+    tune_allocator();
     let cli = Cli::parse();
     match cli.command {
         None => match build_force_pool(None, true).map_err(|e| anyhow::anyhow!("{e}")).and_then(|_| open_window(None)) {

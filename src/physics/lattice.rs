@@ -47,16 +47,19 @@ pub fn fcc_start(counts: &[usize], box_length: f64, seed: u64) -> (Vec<[f64; 3]>
     let a = box_length / n as f64;
     let basis = [[0.0, 0.0, 0.0], [0.5, 0.5, 0.0], [0.5, 0.0, 0.5], [0.0, 0.5, 0.5]];
     let sites = 4 * n * n * n;
-    let mut chosen: Vec<usize> = (0..sites).collect();
-    if sites > atoms {
-        shuffle(&mut chosen, &mut Stream::new(seed, Purpose::LatticeSites, 0, 0));
-        chosen.truncate(atoms);
-        chosen.sort_unstable();
-    }
+    // Which sites stay empty (none when the lattice is exactly full).
+    let chosen: Option<Vec<usize>> = (sites > atoms).then(|| {
+        let mut c: Vec<usize> = (0..sites).collect();
+        shuffle(&mut c, &mut Stream::new(seed, Purpose::LatticeSites, 0, 0));
+        c.truncate(atoms);
+        c.sort_unstable();
+        c
+    });
+    let site_of = |k: usize| chosen.as_ref().map_or(k, |c| c[k]);
     // Quarter-cell offset keeps every atom off the box faces.
-    let positions = chosen
-        .iter()
-        .map(|&s| {
+    let positions = (0..atoms)
+        .map(site_of)
+        .map(|s| {
             let cell = s / 4;
             let b = basis[s % 4];
             let (ix, iy, iz) = (cell / (n * n), (cell / n) % n, cell % n);

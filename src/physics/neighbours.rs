@@ -219,10 +219,10 @@ impl NeighbourList {
         let ends = SharedMut(self.ends.as_mut_ptr());
         let positions = &self.reference;
         let grid = Grid { l, cells, reach: self.reach, starts: &self.cell_starts, atoms: &self.cell_atoms, pos: &self.cell_pos, shell: &self.shell };
-        // Expected partners per atom of a uniform fluid, (2/3)π ρ reach³, with 5% to spare: the
-        // first build reserves near the final size instead of growing step by step.
+        // Expected partners per atom of a uniform fluid, (2/3)π ρ reach³: the first build
+        // reserves near the final size instead of growing step by step.
         let uniform = 2.0 / 3.0 * std::f64::consts::PI * n as f64 / (l * l * l) * self.reach.powi(3);
-        let per_atom = (uniform * 1.05).ceil() as usize + 2;
+        let per_atom = uniform.ceil() as usize + 1;
         self.chunks.par_iter_mut().enumerate().for_each(|(k, list)| {
             let atoms = ((k + 1) * CHUNK).min(n) - k * CHUNK;
             let expected = if list.is_empty() { atoms * per_atom } else { list.len() + list.len() / 32 + 32 };
@@ -238,6 +238,10 @@ impl NeighbourList {
                 }
                 // SAFETY: chunk k alone writes the ends of its own atoms.
                 unsafe { *ends.at(i) = list.len() as u32 };
+            }
+            // Give back capacity beyond 8% of what this build needed (memory per atom is tight).
+            if list.capacity() > list.len() + list.len() / 12 + 64 {
+                list.shrink_to(list.len() + list.len() / 32 + 32);
             }
         });
         self.build_slabs(l);
