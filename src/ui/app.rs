@@ -24,6 +24,8 @@ pub const BUNDLED_NAME: &str = "krypton-getter-sample.ron";
 
 /// Repaint interval while the simulation runs (about 40 frames per second).
 pub const RUNNING_FRAME_INTERVAL: Duration = Duration::from_millis(25);
+/// Boxes with more atoms than this are drawn at half resolution while running.
+pub const DRAFT_ABOVE_ATOMS: usize = 8000;
 
 const STORAGE_SETUP: &str = "noblescope.setup";
 const STORAGE_PATH: &str = "noblescope.setup_path";
@@ -714,6 +716,9 @@ impl NoblescopeApp {
             let h = ui.available_height();
             let w = ui.available_width();
             let units = self.running.units();
+            // Large boxes are drawn at half resolution while running; full resolution when
+            // paused and for pictures.
+            self.view.half_resolution = self.status.status.running && self.shot_target.is_none() && self.frame.len() > DRAFT_ABOVE_ATOMS;
             ui.allocate_ui(egui::vec2(w, (h * 0.56).max(200.0)), |ui| self.view.show(ui, &self.frame, units));
             ui.separator();
             self.plots.show(ui);

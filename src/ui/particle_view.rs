@@ -69,6 +69,8 @@ pub struct ParticleView {
     /// Settings, frame step, atom count and view size the vertex buffer was last filled for.
     filled_for: Option<(ViewSettings, u64, usize, [u32; 2])>,
     culler: Culler,
+    /// Draw the spheres at half resolution (set by the window while a large box runs).
+    pub half_resolution: bool,
     /// View depth and index of the atoms kept by the culler, sorted nearest first.
     order: Vec<(f32, u32)>,
     /// Upper end of the colour scale of the last fill (σ/τ or ε).
@@ -79,7 +81,7 @@ pub struct ParticleView {
 impl ParticleView {
     /// A view with the given settings.
     pub fn new(settings: ViewSettings) -> Self {
-        ParticleView { settings, renderer: SphereRenderer::new(), filled_for: None, culler: Culler::new(), order: Vec::new(), scale_max: 1.0, shown: 0 }
+        ParticleView { settings, renderer: SphereRenderer::new(), filled_for: None, culler: Culler::new(), half_resolution: false, order: Vec::new(), scale_max: 1.0, shown: 0 }
     }
 
     /// The renderer (to free its GL objects on exit).
@@ -207,6 +209,7 @@ impl ParticleView {
         scene.pixels_per_unit = ppu;
         scene.orthographic = ortho;
         scene.background = palette::VIEW_BACKGROUND.to_normalized_gamma_f32();
+        scene.resolution = if self.half_resolution { 0.5 } else { 1.0 };
         let px = [(rect.width() * ppp) as u32, (rect.height() * ppp) as u32];
         let key = (self.settings, frame.step, frame.len(), px);
         if self.filled_for == Some(key) {
