@@ -93,8 +93,8 @@ pub enum Event {
     Rejected { command: String, reason: String },
     /// The watchdog paused the run.
     Alarm(Alarm),
-    /// State went back to this step.
-    Rewound { step: u64 },
+    /// State went back to this step and simulated time (τ); later samples no longer hold.
+    Rewound { step: u64, time: f64 },
     /// A checkpoint was written.
     Saved(PathBuf),
 }

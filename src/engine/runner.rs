@@ -300,7 +300,7 @@ impl Engine {
                                 *session.simulation_mut() = sim;
                                 self.running = false;
                                 self.last_alarm = None;
-                                self.emit(Event::Rewound { step: session.simulation().step_count() });
+                                self.emit(Event::Rewound { step: session.simulation().step_count(), time: session.simulation().time() });
                                 self.emit(Event::Sample(session.observe()));
                                 self.publish_frame(session, true);
                                 Ok(())

@@ -264,7 +264,8 @@ impl NoblescopeApp {
                 }
                 Event::Rejected { command, reason } => self.status.message = Some((format!("{command} refused: {reason}"), true)),
                 Event::Alarm(a) => self.status.alarm = Some(a),
-                Event::Rewound { step } => {
+                Event::Rewound { step, time } => {
+                    self.plots.rewind_to(time);
                     self.status.alarm = None;
                     self.status.message = Some((format!("Rewound to step {step}; lower the timestep before running on."), false));
                 }

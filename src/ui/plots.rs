@@ -118,6 +118,16 @@ impl Plots {
         self.last = Some(*o);
     }
 
+    /// Forgets everything after simulated time `time` (τ), after a rewind.
+    pub fn rewind_to(&mut self, time: f64) {
+        let t = time * self.time_factor();
+        for s in [&mut self.drift, &mut self.kinetic, &mut self.potential, &mut self.total, &mut self.temperature, &mut self.pressure] {
+            s.cut_after(t);
+        }
+        self.log.keep_while(|o| o.time <= time);
+        self.last = self.log.items().last().copied();
+    }
+
     /// Samples received since the last restart.
     pub fn samples(&self) -> u64 {
         self.log.offered()

@@ -90,6 +90,19 @@ impl EnvelopeSeries {
         self.width *= 2;
     }
 
+    /// Drops every bucket that reaches past `x` (after a rewind). A bucket that straddles `x`
+    /// goes too: the plot may lose a little just before the cut, never show data after it.
+    pub fn cut_after(&mut self, x: f64) {
+        let past = |b: &Bucket| b.min[0].max(b.max[0]) > x;
+        if let Some(k) = self.buckets.iter().position(past) {
+            self.buckets.truncate(k);
+            self.pending = None;
+        } else if self.pending.as_ref().is_some_and(past) {
+            self.pending = None;
+        }
+        self.dirty = true;
+    }
+
     /// Raw points seen since the last clear.
     pub fn seen(&self) -> u64 {
         self.buckets.iter().chain(self.pending.iter()).map(|b| b.count).sum()
@@ -166,6 +179,12 @@ impl<T: Copy> ThinnedLog<T> {
         self.offered += 1;
     }
 
+    /// Keeps the leading samples for which `keep` holds and drops the rest.
+    pub fn keep_while(&mut self, keep: impl Fn(&T) -> bool) {
+        let k = self.items.iter().position(|t| !keep(t)).unwrap_or(self.items.len());
+        self.items.truncate(k);
+    }
+
     /// Kept samples, oldest first.
     pub fn items(&self) -> &[T] {
         &self.items
@@ -185,6 +204,25 @@ impl<T: Copy> ThinnedLog<T> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn rewinding_cuts_points_after_the_cut() {
+        let mut s = EnvelopeSeries::new(8);
+        for i in 0..100 {
+            s.push(i as f64, (i % 7) as f64);
+        }
+        s.cut_after(40.0);
+        assert!(s.points().iter().all(|p| p.x <= 40.0));
+        assert!(!s.points().is_empty());
+        s.push(41.0, 3.0);
+        assert_eq!(s.points().last().map(|p| p.x), Some(41.0));
+        let mut log = ThinnedLog::new(10);
+        for i in 0..8u32 {
+            log.push(i);
+        }
+        log.keep_while(|&v| v <= 4);
+        assert_eq!(log.items(), &[0, 1, 2, 3, 4]);
+    }
 
     #[test]
     fn stays_bounded_over_a_long_run() {

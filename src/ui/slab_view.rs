@@ -80,7 +80,9 @@ impl Slab {
             ui.add(egui::Slider::new(&mut self.centre, 0.0..=1.0).fixed_decimals(2).text("of the edge")).labelled_by(l.id);
             ui.separator();
             let l = ui.label("thickness");
-            let max = box_length.max(0.5);
+            // Before the first frame the box edge is unknown (0): keep the present thickness
+            // in range instead of letting the slider clamp it down.
+            let max = if box_length > 0.0 { box_length.max(0.5) } else { self.thickness.max(2.0) };
             ui.add(egui::Slider::new(&mut self.thickness, 0.2..=max).fixed_decimals(1).suffix(" σ")).labelled_by(l.id);
         });
     }
