@@ -24,6 +24,7 @@ fn small(steps: u64, sample_every: u64) -> Setup {
         equilibration_steps: 0,
         sample_every,
         trajectory_every: None,
+        rdf_every: None,
     }
 }
 

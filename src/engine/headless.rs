@@ -2,6 +2,7 @@
 //! trajectory written to an output folder.
 
 use super::session::Session;
+use crate::analysis::RadialDistribution;
 use crate::io::energy_log::EnergyLog;
 use crate::io::summary::{RunFacts, Summary};
 use crate::io::trajectory;
@@ -48,7 +49,7 @@ impl RunError {
 }
 
 /// Files a run writes into its output folder.
-pub const OUTPUT_FILES: [&str; 4] = ["energy.csv", "summary.json", "final.checkpoint", "trajectory.xyz"];
+pub const OUTPUT_FILES: [&str; 5] = ["energy.csv", "summary.json", "final.checkpoint", "trajectory.xyz", "rdf.csv"];
 
 /// Checks that `out` can take a run without destroying an earlier one.
 pub fn check_output_dir(out: &Path, overwrite: bool) -> Result<(), RunError> {
@@ -85,6 +86,7 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
         None => None,
     };
     let mut samples: Vec<Observables> = Vec::new();
+    let mut rdf = setup.rdf_every.map(|_| RadialDistribution::new(session.simulation().spec().cutoff, RDF_BINS));
     if fresh {
         let o = session.observe();
         log.write(&o).map_err(|e| io_err("energy.csv", e))?;
@@ -120,6 +122,11 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
                 let sim = session.simulation();
                 trajectory::write_frame(t, sim.system(), &units, step, sim.time()).map_err(|e| io_err("trajectory.xyz", e))?;
             }
+        if let (Some(g), Some(k)) = (rdf.as_mut(), setup.rdf_every) {
+            if step.is_multiple_of(k) && step >= setup.equilibration_steps {
+                g.add(session.simulation());
+            }
+        }
         if step.is_multiple_of(64) {
             bar.set_position(step - start_step);
         }
@@ -135,6 +142,9 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
     }
     for w in &warnings {
         eprintln!("warning: {w}");
+    }
+    if let Some(g) = &rdf {
+        std::fs::write(opts.out.join("rdf.csv"), rdf_csv(g, &units)).map_err(|e| io_err("rdf.csv", e))?;
     }
     session.checkpoint().save(&opts.out.join("final.checkpoint")).map_err(|e| RunError::Failed(e.to_string()))?;
     let sim = session.simulation();
@@ -156,6 +166,23 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
     );
     std::fs::write(opts.out.join("summary.json"), summary.to_json()).map_err(|e| io_err("summary.json", e))?;
     Ok(summary)
+}
+
+/// Bins of g(r) between 0 and the cutoff.
+pub const RDF_BINS: usize = 200;
+
+/// g(r) as CSV: r in σ (and Å for real species), g, running coordination number.
+pub fn rdf_csv(g: &RadialDistribution, units: &crate::physics::UnitSystem) -> String {
+    let real = units.has_real_units();
+    let mut out = String::from(if real { "r [sigma],r [angstrom],g [1],coordination [1]\n" } else { "r [sigma],g [1],coordination [1]\n" });
+    for p in g.points() {
+        if real {
+            out.push_str(&format!("{:.5},{:.5},{:.6},{:.6}\n", p.r, p.r * units.sigma_angstrom(), p.g, p.coordination));
+        } else {
+            out.push_str(&format!("{:.5},{:.6},{:.6}\n", p.r, p.g, p.coordination));
+        }
+    }
+    out
 }
 
 /// Mass density of the session's box in g/cm³.

@@ -107,6 +107,10 @@ pub struct Setup {
     /// Write an XYZ frame every this many steps.
     #[serde(default)]
     pub trajectory_every: Option<u64>,
+    /// Add the configuration to the radial distribution function (rdf.csv) every this many
+    /// steps, from `equilibration_steps` on; g(r) reaches out to the cutoff.
+    #[serde(default)]
+    pub rdf_every: Option<u64>,
 }
 
 fn default_skin() -> Length {
@@ -303,10 +307,11 @@ impl Setup {
         if self.equilibration_steps >= self.steps {
             return Err(SetupError::field("equilibration_steps", self.equilibration_steps, format!("0 to steps − 1 ({})", self.steps - 1)));
         }
-        if let Some(k) = self.trajectory_every
-            && k == 0 {
-                return Err(SetupError::field("trajectory_every", "Some(0)", "None or Some(n) with n ≥ 1"));
+        for (name, every) in [("trajectory_every", self.trajectory_every), ("rdf_every", self.rdf_every)] {
+            if every == Some(0) {
+                return Err(SetupError::field(name, "Some(0)", "None or Some(n) with n ≥ 1"));
             }
+        }
         let shares: Vec<f64> = self.species.iter().map(|s| s.share).collect();
         let spec = SimulationSpec {
             kinds: self.species.iter().map(|s| s.kind).collect(),

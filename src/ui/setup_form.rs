@@ -62,6 +62,8 @@ pub struct SetupForm {
     pub sample_every: String,
     /// Kept from the loaded setup (not edited in the form).
     pub trajectory_every: Option<u64>,
+    /// Kept from the loaded setup (not edited in the form).
+    pub rdf_every: Option<u64>,
 }
 
 /// Field errors by setup field name ("density", "species[1].share", …); "" holds errors that
@@ -120,6 +122,7 @@ impl SetupForm {
             equilibration_steps: s.equilibration_steps.to_string(),
             sample_every: s.sample_every.to_string(),
             trajectory_every: s.trajectory_every,
+            rdf_every: s.rdf_every,
         }
     }
 
@@ -181,6 +184,7 @@ impl SetupForm {
             equilibration_steps,
             sample_every,
             trajectory_every: self.trajectory_every,
+            rdf_every: self.rdf_every,
         };
         (setup, errors)
     }
