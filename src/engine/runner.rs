@@ -5,12 +5,15 @@
 //! never waits for drawing: it fills a frame only when the last one was taken.
 
 use super::frame::{Frame, FrameMailbox};
-use super::protocol::{Alarm, Command, Event, Status};
+use super::protocol::{check_tune_request, Alarm, Command, Event, Status, TuneUnits, TuningReport};
 use super::rewind::RewindBuffer;
 use super::session::Session;
+use super::tuning;
 use crate::io::checkpoint::Checkpoint;
 use crate::io::setup::{Setup, SetupError};
-use std::sync::mpsc::{self, Receiver, RecvTimeoutError, Sender};
+use crate::physics::{Simulation, SimulationSpec, SimulationState};
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::mpsc::{self, Receiver, RecvTimeoutError, Sender, TryRecvError};
 use std::sync::Arc;
 use std::thread::JoinHandle;
 use std::time::{Duration, Instant};
@@ -21,6 +24,10 @@ const SNAPSHOT_EVERY: u64 = 500;
 const BATCH: Duration = Duration::from_millis(15);
 /// How often a status event goes out.
 const STATUS_EVERY: Duration = Duration::from_millis(250);
+/// Configurations a cutoff scan averages over: the present state and, from a copy, states this
+/// many steps apart.
+const TUNE_CONFIGURATIONS: usize = 5;
+const TUNE_STEPS_APART: u64 = 200;
 
 /// The window's side of the engine: send commands, read events, take frames.
 pub struct EngineHandle {
@@ -95,6 +102,63 @@ struct Engine {
     rate_since: Instant,
     last_status: Instant,
     steps_per_second: f64,
+    /// The tuning scan running beside the loop, if any.
+    tune: Option<TuneJob>,
+}
+
+/// A tuning scan on its own thread, working on copies of the state.
+struct TuneJob {
+    result: Receiver<Result<TuningReport, String>>,
+    /// Set to make the worker stop at its next trial (when the engine ends).
+    cancel: Arc<AtomicBool>,
+    thread: JoinHandle<()>,
+}
+
+impl TuneJob {
+    fn start(spec: SimulationSpec, state: SimulationState, timesteps: Vec<f64>, cutoffs: Vec<f64>, duration: f64) -> std::io::Result<TuneJob> {
+        let (tx, rx) = mpsc::channel();
+        let cancel = Arc::new(AtomicBool::new(false));
+        let stop = cancel.clone();
+        let thread = std::thread::Builder::new().name("noblescope-tune".into()).spawn(move || {
+            let _ = tx.send(scan(spec, state, &timesteps, &cutoffs, duration, &stop));
+        })?;
+        Ok(TuneJob { result: rx, cancel, thread })
+    }
+}
+
+/// The scans of one tuning request; `stop` is checked between trials.
+fn scan(spec: SimulationSpec, state: SimulationState, timesteps: &[f64], cutoffs: &[f64], duration: f64, stop: &AtomicBool) -> Result<TuningReport, String> {
+    let stopped = || if stop.load(Ordering::Relaxed) { Err("the engine stopped".to_string()) } else { Ok(()) };
+    let from_step = state.step;
+    let mut rows = Vec::with_capacity(timesteps.len());
+    for &dt in timesteps {
+        stopped()?;
+        rows.extend(tuning::timestep_scan(&spec, &state, &[dt], duration));
+    }
+    // More configurations for the cutoff averages, from a copy that runs on as the user's would.
+    let mut copy = Simulation::from_state(spec.clone(), state.clone()).map_err(|e| e.to_string())?;
+    let mut states = vec![state];
+    while states.len() < TUNE_CONFIGURATIONS {
+        stopped()?;
+        if copy.run(TUNE_STEPS_APART).is_err() {
+            break;
+        }
+        states.push(copy.state());
+    }
+    let crows = tuning::cutoff_scan(&spec, &states, cutoffs, spec.potential);
+    if let Some(&missing) = cutoffs.iter().find(|&&rc| !crows.iter().any(|r| r.cutoff == rc)) {
+        return Err(format!("cutoffs: {missing} σ could not be evaluated; allowed: cutoff + skin ({} σ) at most half the box ({:.4} σ)", spec.skin, 0.5 * spec.box_length()));
+    }
+    Ok(TuningReport {
+        from_step,
+        reference: spec.kinds[0],
+        potential: spec.potential,
+        duration,
+        configurations: states.len(),
+        recommended: tuning::recommended_timestep(&rows),
+        timesteps: rows,
+        cutoffs: crows,
+    })
 }
 
 impl Engine {
@@ -111,6 +175,31 @@ impl Engine {
             rate_since: Instant::now(),
             last_status: Instant::now(),
             steps_per_second: 0.0,
+            tune: None,
+        }
+    }
+
+    /// Passes on the result of a finished tuning scan.
+    fn poll_tune(&mut self) {
+        let Some(job) = &self.tune else { return };
+        let outcome = match job.result.try_recv() {
+            Ok(r) => r,
+            Err(TryRecvError::Empty) => return,
+            Err(TryRecvError::Disconnected) => Err("the tuning scan stopped unexpectedly".into()),
+        };
+        if let Some(job) = self.tune.take() {
+            let _ = job.thread.join();
+        }
+        match outcome {
+            Ok(report) => self.emit(Event::Tuned(report)),
+            Err(reason) => self.emit(Event::Rejected { command: "Tune".into(), reason }),
+        }
+    }
+
+    /// Stops a running scan at its next trial without waiting for it.
+    fn cancel_tune(&mut self) {
+        if let Some(job) = self.tune.take() {
+            job.cancel.store(true, Ordering::Relaxed);
         }
     }
 
@@ -140,6 +229,7 @@ impl Engine {
         };
         self.start(&session);
         loop {
+            self.poll_tune();
             // Read commands: wait while paused, only peek while running.
             let cmd = if self.running {
                 self.commands.try_recv().ok()
@@ -147,11 +237,15 @@ impl Engine {
                 match self.commands.recv_timeout(Duration::from_millis(50)) {
                     Ok(c) => Some(c),
                     Err(RecvTimeoutError::Timeout) => None,
-                    Err(RecvTimeoutError::Disconnected) => return,
+                    Err(RecvTimeoutError::Disconnected) => {
+                        self.cancel_tune();
+                        return;
+                    }
                 }
             };
             if let Some(c) = cmd {
                 if !self.handle(c, &mut session) {
+                    self.cancel_tune();
                     return;
                 }
                 continue;
@@ -309,6 +403,20 @@ impl Engine {
                         }
                     }
                     None => Err("no snapshot older than the alarm is left; reset instead".into()),
+                }
+            }
+            Command::Tune { timesteps, cutoffs, duration } => {
+                let sim = session.simulation();
+                if self.tune.is_some() {
+                    Err("a tuning scan is already running; wait for its results before starting another".into())
+                } else if matches!(self.last_alarm, Some(Alarm::NonFinite { .. })) {
+                    Err("the run blew up; rewind or reset before tuning".into())
+                } else {
+                    check_tune_request(sim.spec(), &timesteps, &cutoffs, duration, TuneUnits::REDUCED).and_then(|()| {
+                        let job = TuneJob::start(sim.spec().clone(), sim.state(), timesteps, cutoffs, duration).map_err(|e| format!("could not start the tuning scan: {e}"))?;
+                        self.tune = Some(job);
+                        Ok(())
+                    })
                 }
             }
         };

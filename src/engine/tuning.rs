@@ -5,7 +5,7 @@ use crate::physics::{PotentialMode, Simulation, SimulationSpec, SimulationState,
 use serde::Serialize;
 
 /// How one timestep fared over a short constant-energy run.
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct TimestepRow {
     /// Timestep in τ.
     pub timestep: f64,
@@ -21,7 +21,7 @@ pub struct TimestepRow {
 }
 
 /// Energy and pressure at one cutoff, averaged over configurations.
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct CutoffRow {
     /// Cutoff in σ.
     pub cutoff: f64,

@@ -8,6 +8,7 @@ use super::particle_view::{ParticleView, ViewMode, ViewSettings};
 use super::plots::Plots;
 use super::setup_form::{FormAction, SetupForm};
 use super::status::StatusLine;
+use super::tuning_panel::{TuningAction, TuningPanel};
 use super::watch::{StartView, WatchPlan, WatchRecorder};
 use crate::engine::{Command, EngineHandle, Event, Frame};
 use crate::io::setup::{Ensemble, Setup};
@@ -76,6 +77,10 @@ pub struct NoblescopeApp {
     status: StatusLine,
     atoms: usize,
     form_open: bool,
+    tuning: TuningPanel,
+    tuning_open: bool,
+    /// Start a scan of the default lists once the engine runs (`--view tuning`).
+    tune_at_start: bool,
     help_open: bool,
     leave: Option<Leave>,
     allow_close: bool,
@@ -120,6 +125,7 @@ impl NoblescopeApp {
                 form_open = false;
             }
             Some(StartView::Setup) => form_open = true,
+            Some(StartView::Tuning) => form_open = false,
             None => {}
         }
         let saved = if restored {
@@ -132,6 +138,7 @@ impl NoblescopeApp {
             Some(StartView::Box3d) | None => "3d",
             Some(StartView::Slab) => "slab",
             Some(StartView::Setup) => "setup",
+            Some(StartView::Tuning) => "tuning",
         };
         let mut status = StatusLine::default();
         if restored {
@@ -150,6 +157,9 @@ impl NoblescopeApp {
             status,
             atoms: 0,
             form_open,
+            tuning: TuningPanel::for_setup(&setup),
+            tuning_open: opts.view == Some(StartView::Tuning),
+            tune_at_start: opts.view == Some(StartView::Tuning),
             help_open: false,
             leave: None,
             allow_close: false,
@@ -171,6 +181,21 @@ impl NoblescopeApp {
     /// The form (tests edit it directly or through the widgets).
     pub fn form_mut(&mut self) -> &mut SetupForm {
         &mut self.form
+    }
+
+    /// The tuning panel (tests edit its lists directly or through the widgets).
+    pub fn tuning(&self) -> &TuningPanel {
+        &self.tuning
+    }
+
+    /// Mutable tuning panel.
+    pub fn tuning_mut(&mut self) -> &mut TuningPanel {
+        &mut self.tuning
+    }
+
+    /// Opens or closes the tuning panel.
+    pub fn set_tuning_open(&mut self, open: bool) {
+        self.tuning_open = open;
     }
 
     /// Latest engine status.
@@ -253,6 +278,7 @@ impl NoblescopeApp {
                 }
                 Event::Started { setup, atoms } => {
                     self.adopt(&setup);
+                    self.tuning.setup_changed(&setup);
                     self.atoms = atoms;
                     self.plots.restart(setup.units(), Self::thermostat_target(&setup));
                     self.status.alarm = None;
@@ -262,7 +288,22 @@ impl NoblescopeApp {
                     self.plots.set_target(Self::thermostat_target(&setup));
                     self.status.message = Some(("Live change applied.".into(), false));
                 }
-                Event::Rejected { command, reason } => self.status.message = Some((format!("{command} refused: {reason}"), true)),
+                Event::Rejected { command, reason } => {
+                    if command == "Tune" {
+                        self.tuning.rejected(reason.clone());
+                    }
+                    self.status.message = Some((format!("{command} refused: {reason}"), true));
+                }
+                Event::Tuned(report) => {
+                    let units = crate::physics::UnitSystem::new(report.reference);
+                    let text = match report.recommended {
+                        Some(dt) if units.has_real_units() => format!("Tuning scan done: recommended timestep {} fs.", super::unit_field::format_number(dt * units.tau_fs())),
+                        Some(dt) => format!("Tuning scan done: recommended timestep {} τ.", super::unit_field::format_number(dt)),
+                        None => "Tuning scan done: no timestep tried was steady enough.".to_string(),
+                    };
+                    self.status.message = Some((text, false));
+                    self.tuning.finished(report);
+                }
                 Event::Alarm(a) => self.status.alarm = Some(a),
                 Event::Rewound { step, time } => {
                     self.plots.rewind_to(time);
@@ -302,6 +343,20 @@ impl NoblescopeApp {
                 }
             }
             FormAction::Revert => self.form = SetupForm::from_setup(&self.running),
+        }
+    }
+
+    fn tuning_action(&mut self, action: TuningAction) {
+        match action {
+            TuningAction::Start(c) => {
+                self.status.message = Some(("Tuning scan started on copies of the present state.".into(), false));
+                self.send(c);
+            }
+            TuningAction::UseTimestep(dt) => {
+                self.form.timestep = super::unit_field::UnitField::from_value(dt);
+                self.form_open = true;
+                self.status.message = Some(("Recommended timestep put into the setup form: press Change live or Apply and restart to use it.".into(), false));
+            }
         }
     }
 
@@ -539,6 +594,7 @@ impl NoblescopeApp {
             }
             ui.separator();
             ui.toggle_value(&mut self.form_open, "Setup form").on_hover_text("Ctrl+3: show or hide the setup form");
+            ui.toggle_value(&mut self.tuning_open, "Tuning").on_hover_text("scan timesteps and cutoffs before a long run");
             if ui.button("Help").on_hover_text("F1").clicked() {
                 self.help_open = !self.help_open;
             }
@@ -600,7 +656,8 @@ impl NoblescopeApp {
         }
         let Some(n) = plan.frames else { return };
         rec.frame(Instant::now());
-        if self.shot_target.is_some() || rec.measured() < n as usize {
+        // With `--view tuning` the picture waits for the scan's results.
+        if self.shot_target.is_some() || rec.measured() < n as usize || self.tune_at_start || self.tuning.scanning() {
             return;
         }
         match plan.screenshot.clone() {
@@ -703,6 +760,27 @@ impl NoblescopeApp {
                     let running = self.running.clone();
                     if let Some(a) = self.form.show(ui, &running) {
                         self.apply_form(a);
+                    }
+                });
+            });
+        }
+        if self.tuning_open {
+            if self.tune_at_start && self.atoms > 0 {
+                self.tune_at_start = false;
+                match self.tuning.request(&self.running) {
+                    Ok(c) => {
+                        let start = self.tuning.start_requested(c);
+                        self.tuning_action(start);
+                    }
+                    Err(e) => self.tuning.rejected(e),
+                }
+            }
+            egui::Panel::right("tuning-panel").frame(bare(egui::Frame::side_top_panel(&style))).resizable(true).default_size(580.0).min_size(380.0).show(ui, |ui| {
+                ui.heading("Timestep and cutoff tuning");
+                egui::ScrollArea::vertical().show(ui, |ui| {
+                    let running = self.running.clone();
+                    if let Some(a) = self.tuning.show(ui, &running) {
+                        self.tuning_action(a);
                     }
                 });
             });

@@ -5,6 +5,7 @@
 //! - [`setup_form`], [`unit_field`]: editing and validating a setup;
 //! - [`particle_view`], [`slab_view`], [`gl_spheres`], [`cull`]: the atoms in 3D or as a flat slab;
 //! - [`plots`], [`series`]: live plots on bounded, envelope-keeping series;
+//! - [`tuning_panel`]: timestep and cutoff scans before a long run;
 //! - [`status`], [`help`], [`palette`]: status line, keys and colours;
 //! - [`files`]: dialogs and writers; [`watch`]: scripted watching for reports and pictures;
 //! - [`window`]: opening the native window.
@@ -21,6 +22,7 @@ pub mod series;
 pub mod setup_form;
 pub mod slab_view;
 pub mod status;
+pub mod tuning_panel;
 pub mod unit_field;
 pub mod watch;
 pub mod window;

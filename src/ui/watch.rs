@@ -15,6 +15,8 @@ pub enum StartView {
     Slab,
     /// The setup form opened beside the view.
     Setup,
+    /// The tuning panel beside the view, with a scan of its default lists started at once.
+    Tuning,
 }
 
 /// What a scripted watch does.
