@@ -11,7 +11,7 @@ use crate::engine::tuning::FLUCTUATION_LIMIT;
 use crate::engine::Command;
 use crate::io::setup::{Duration, Length, Setup};
 use crate::physics::UnitSystem;
-use egui_plot::{HLine, Legend, Line, MarkerShape, Plot, PlotPoints, Points, VLine};
+use egui_plot::{Corner, HLine, Legend, Line, MarkerShape, Plot, PlotPoints, Points, VLine};
 use std::time::Instant;
 
 /// Cutoffs offered by default (σ), as far as the box allows.
@@ -96,6 +96,11 @@ fn parse_list(field: &str, text: &str) -> Result<Vec<f64>, String> {
             _ => Err(format!("{field}: \"{t}\" is not a number; allowed: numbers separated by commas, such as 5, 10, 15")),
         })
         .collect()
+}
+
+/// `v` rounded to three significant digits (for the reduced equivalents line).
+fn sig3(v: f64) -> String {
+    format!("{}", format!("{v:.2e}").parse::<f64>().unwrap_or(v))
 }
 
 fn join(values: impl IntoIterator<Item = f64>) -> String {
@@ -213,7 +218,7 @@ impl TuningPanel {
         let shown = Shown::of(running.units());
         let (_, tu) = shown.timestep();
         let (_, du) = shown.duration();
-        ui.label("Short constant-energy trials from the present state show which timestep keeps the energy steady; a cutoff scan shows how far energy and pressure are from the full potential. The scans run on copies: your simulation is not advanced.");
+        ui.label("Short constant-energy trials show which timestep keeps the energy steady; the cutoff scan shows how far energy and pressure are from the full potential. Both run on copies of the present state: your simulation is not advanced.");
         ui.add_space(4.0);
         egui::Grid::new("tune-inputs").num_columns(2).spacing([8.0, 6.0]).show(ui, |ui| {
             let l = ui.label(format!("Timesteps [{tu}]"));
@@ -256,7 +261,7 @@ impl TuningPanel {
                 ui.colored_label(palette::ERROR_TEXT, e);
             }
             Ok(Command::Tune { timesteps, .. }) if shown.real => {
-                ui.weak(format!("= {} τ", join(timesteps.iter().copied())));
+                ui.weak(format!("= {} τ", timesteps.iter().map(|&v| sig3(v)).collect::<Vec<_>>().join(", ")));
             }
             Ok(_) => {}
         }
@@ -339,7 +344,7 @@ impl TuningPanel {
         let rec_point: Vec<[f64; 2]> = report.timesteps.iter().filter(|r| Some(r.timestep) == report.recommended).map(|r| [r.timestep * tf, r.fluctuation_ratio]).collect();
         let w = ((ui.available_width() - 12.0) / 2.0).max(160.0);
         ui.horizontal(|ui| {
-            small_plot("tune-ratio-plot", w, format!("timestep [{tu}]"), "ΔE/ΔK rms [1]").include_y(0.0).show(ui, |p| {
+            small_plot("tune-ratio-plot", w, format!("timestep [{tu}]"), "ΔE/ΔK rms [1]", Corner::LeftTop).include_y(0.0).include_y(top * 1.2).show(ui, |p| {
                 p.line(Line::new("fluctuation ratio", PlotPoints::from(ok.clone())).color(palette::SERIES[0]));
                 p.points(Points::new("fluctuation ratio", PlotPoints::from(ok.clone())).color(palette::SERIES[0]).radius(3.0));
                 p.hline(HLine::new(format!("{:.0}% limit", FLUCTUATION_LIMIT * 100.0), FLUCTUATION_LIMIT).color(palette::ERROR_TEXT).style(egui_plot::LineStyle::dashed_dense()));
@@ -351,7 +356,7 @@ impl TuningPanel {
                     p.points(Points::new("blew up (drawn at the top)", PlotPoints::from(blown.clone())).color(palette::ERROR_TEXT).shape(MarkerShape::Cross).radius(7.0));
                 }
             });
-            small_plot("tune-drift-plot", w, format!("timestep [{tu}]"), "|relative drift| [1]").include_y(0.0).show(ui, |p| {
+            small_plot("tune-drift-plot", w, format!("timestep [{tu}]"), "|relative drift| [1]", Corner::LeftTop).include_y(0.0).include_y(drift_top * 1.3).show(ui, |p| {
                 p.line(Line::new("|relative drift|", PlotPoints::from(drift.clone())).color(palette::SERIES[3]));
                 p.points(Points::new("|relative drift|", PlotPoints::from(drift.clone())).color(palette::SERIES[3]).radius(3.0));
                 if let Some(x) = rec {
@@ -417,8 +422,8 @@ impl TuningPanel {
         let w = ((ui.available_width() - 12.0) / 2.0).max(160.0);
         let mode = format!("{:?}", report.potential);
         ui.horizontal(|ui| {
-            for (id, label, a, b) in [("tune-energy-plot", format!("potential energy per atom [{eu}]"), &u_mode, &u_full), ("tune-pressure-plot", format!("pressure [{pu}]"), &p_mode, &p_full)] {
-                small_plot(id, w, format!("cutoff [{lu}]"), &label).show(ui, |p| {
+            for (id, label, a, b) in [("tune-energy-plot", format!("U/N [{eu}]"), &u_mode, &u_full), ("tune-pressure-plot", format!("P [{pu}]"), &p_mode, &p_full)] {
+                small_plot(id, w, format!("cutoff [{lu}]"), &label, Corner::RightTop).show(ui, |p| {
                     p.line(Line::new(mode.clone(), PlotPoints::from(a.clone())).color(palette::SERIES[2]));
                     p.points(Points::new(mode.clone(), PlotPoints::from(a.clone())).color(palette::SERIES[2]).radius(3.0));
                     p.line(Line::new("full estimate", PlotPoints::from(b.clone())).color(palette::SERIES[4]).style(egui_plot::LineStyle::dashed_loose()));
@@ -443,17 +448,28 @@ impl TuningPanel {
     }
 }
 
-fn small_plot(id: &str, width: f32, x: String, y: &str) -> Plot<'static> {
+/// A small plot; the legend sits in `legend`, away from where the data lie.
+fn small_plot(id: &str, width: f32, x: String, y: &str, legend: Corner) -> Plot<'static> {
     Plot::new(id.to_string())
         .width(width)
-        .height(170.0)
+        .height(150.0)
         .x_axis_label(x)
         .y_axis_label(y.to_string())
-        .legend(Legend::default())
+        .legend(Legend::default().position(legend).text_style(egui::TextStyle::Small).background_alpha(0.6))
         .allow_scroll(false)
         .y_axis_min_width(56.0)
         .show_background(false)
         .y_grid_spacer(nice_grid)
+        .y_axis_formatter(|m, _| axis_label(m))
+}
+
+/// Axis numbers with as many decimals as the grid step needs (scientific below 1e-4).
+fn axis_label(m: egui_plot::GridMark) -> String {
+    if m.value.abs() < m.step_size * 1e-6 {
+        return "0".into();
+    }
+    let decimals = (-m.step_size.log10().floor()).max(0.0) as usize;
+    if decimals > 4 { format!("{:.1e}", m.value) } else { format!("{:.decimals$}", m.value) }
 }
 
 #[cfg(test)]
