@@ -272,10 +272,10 @@ impl TuningPanel {
             } else {
                 "fix the lists first"
             });
-            if start.clicked() {
-                if let Ok(c) = request.clone() {
-                    action = Some(self.start_requested(c));
-                }
+            if start.clicked()
+                && let Ok(c) = request.clone()
+            {
+                action = Some(self.start_requested(c));
             }
             if ui.add_enabled(self.scanning.is_none(), egui::Button::new("Default lists")).clicked() {
                 self.fill_defaults(running);
