@@ -59,6 +59,7 @@ PY
 shot view-3d assets/krypton-getter-sample.ron 90 3d
 shot view-slab assets/krypton-getter-sample.ron 90 slab
 shot view-setup assets/krypton-getter-sample.ron 60 setup
+shot view-tuning assets/krypton-getter-sample.ron 60 tuning
 if [[ "${SKIP_PERF:-0}" != 1 ]]; then
     shot perf-32k-3d assets/reduced-liquid-32k.ron 400 3d
     "$bin" bench --atoms 32000 --json "$out/bench-32k.json" | tail -n 1
@@ -71,7 +72,7 @@ print(f"32k atoms: displayed {w['atom_steps_per_second']:.3e} vs headless {b['at
 PY
 fi
 
-pngs=("$out"/view-3d.png "$out"/view-slab.png "$out"/view-setup.png)
+pngs=("$out"/view-3d.png "$out"/view-slab.png "$out"/view-setup.png "$out"/view-tuning.png)
 [[ "${SKIP_PERF:-0}" == 1 ]] || pngs+=("$out"/perf-32k-3d.png)
 python3 scripts/check_png.py "${pngs[@]}" || fail=1
 if [[ $fail != 0 ]]; then
