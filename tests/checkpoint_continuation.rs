@@ -12,6 +12,7 @@
 //! Spec values (ρ, T, dt, r_c) are a common-practice liquid state point, chosen only to give a
 //! moving dense system; the argon setup is the project's own example (`assets/`) made smaller.
 
+mod common;
 use noblescope::io::checkpoint::{write_atomically, Checkpoint};
 use noblescope::io::Setup;
 use noblescope::physics::{Observables, Simulation};
@@ -47,17 +48,7 @@ const ENSEMBLES: [(&str, &str); 3] = [
 ];
 
 fn bits(o: &Observables) -> [u64; 9] {
-    [
-        o.step,
-        o.time.to_bits(),
-        o.kinetic.to_bits(),
-        o.potential.to_bits(),
-        o.total.to_bits(),
-        o.conserved.to_bits(),
-        o.temperature.to_bits(),
-        o.pressure.to_bits(),
-        o.drift.to_bits(),
-    ]
+    common::observable_bits(o)
 }
 
 fn steps(sim: &mut Simulation, n: u64, out: &mut Vec<[u64; 9]>) {

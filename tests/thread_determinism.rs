@@ -11,6 +11,7 @@
 //! r_c = 2.5, skin 0.3, dt = 0.005) are a common-practice liquid state point for the reduced LJ
 //! fluid, chosen here only to give a dense, moving system.
 
+mod common;
 use noblescope::physics::{PotentialMode, Simulation, SimulationSpec, Species, Thermostat};
 
 const STEPS: u64 = 150;
@@ -55,17 +56,7 @@ fn run(spec: &SimulationSpec, threads: usize) -> Trace {
         for _ in 0..STEPS {
             sim.step().unwrap();
             let o = sim.observe();
-            observables.push([
-                o.step,
-                o.time.to_bits(),
-                o.kinetic.to_bits(),
-                o.potential.to_bits(),
-                o.total.to_bits(),
-                o.conserved.to_bits(),
-                o.temperature.to_bits(),
-                o.pressure.to_bits(),
-                o.drift.to_bits(),
-            ]);
+            observables.push(common::observable_bits(&o));
         }
         Trace {
             slabs,

@@ -32,6 +32,21 @@ pub fn sample(sim: &mut Simulation, equilibrate: u64, produce: u64, every: u64) 
     out
 }
 
+/// Every field of a sample as exact bits, for bitwise comparisons.
+pub fn observable_bits(o: &Observables) -> [u64; 9] {
+    [
+        o.step,
+        o.time.to_bits(),
+        o.kinetic.to_bits(),
+        o.potential.to_bits(),
+        o.total.to_bits(),
+        o.conserved.to_bits(),
+        o.temperature.to_bits(),
+        o.pressure.to_bits(),
+        o.drift.to_bits(),
+    ]
+}
+
 /// Block-averaged mean and error of one observable.
 pub fn estimate(samples: &[Observables], f: impl Fn(&Observables) -> f64) -> Estimate {
     block_average(&samples.iter().map(f).collect::<Vec<_>>())
