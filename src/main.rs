@@ -347,15 +347,10 @@ fn tune(path: &Path, timesteps: Vec<f64>, cutoffs: Vec<f64>, time: f64, equilibr
                 return Err(RunError::Failed(a.describe()));
             }
     }
-    let start = session.simulation().state();
-    let mut states = vec![start.clone()];
-    for _ in 0..4 {
-        for _ in 0..200 {
-            session.step();
-        }
-        states.push(session.simulation().state());
-    }
-    let rows = noblescope::engine::tuning::timestep_scan(&spec, &start, &reduced_dts, time);
+    let never = std::sync::atomic::AtomicBool::new(false);
+    let report = noblescope::engine::tuning::full_scan(spec.clone(), session.simulation().state(), &reduced_dts, &reduced_cutoffs, time, &never)
+        .map_err(RunError::Failed)?;
+    let rows = &report.timesteps;
     println!("timestep scan: constant energy for {time} τ from the equilibrated state");
     println!("{:>12} {:>12} {:>8} {:>16} {:>14} {:>12}", format!("dt [{dt_unit}]"), "dt [tau]", "steps", "drift/atom/tau", "rel. drift", "dE/dK rms");
     for (r, v) in rows.iter().zip(&dts) {
@@ -365,7 +360,7 @@ fn tune(path: &Path, timesteps: Vec<f64>, cutoffs: Vec<f64>, time: f64, equilibr
             println!("{v:>12.5} {:>12.5} {:>8} {:>16.3e} {:>14.3e} {:>12.4}", r.timestep, r.steps, r.drift_per_atom_per_tau, r.relative_drift, r.fluctuation_ratio);
         }
     }
-    match noblescope::engine::tuning::recommended_timestep(&rows) {
+    match report.recommended {
         Some(dt) => println!(
             "largest timestep with total-energy fluctuation under {:.0}% of the kinetic: {:.5} {dt_unit} ({dt:.5} τ)",
             noblescope::engine::tuning::FLUCTUATION_LIMIT * 100.0,
@@ -373,14 +368,14 @@ fn tune(path: &Path, timesteps: Vec<f64>, cutoffs: Vec<f64>, time: f64, equilibr
         ),
         None => println!("no timestep tried conserved energy well enough: try smaller ones"),
     }
-    if noblescope::engine::tuning::recommended_timestep(&rows) == reduced_dts.iter().copied().reduce(f64::max) {
+    if report.recommended == reduced_dts.iter().copied().reduce(f64::max) {
         println!("(that is the largest timestep tried: larger ones may pass too)");
     }
-    let crow = noblescope::engine::tuning::cutoff_scan(&spec, &states, &reduced_cutoffs, spec.potential);
+    let crow = &report.cutoffs;
     let len_unit = match setup.cutoff { Length::Sigma(_) => "sigma", Length::Angstrom(_) => "A" };
-    println!("cutoff scan: {:?}, averaged over {} configurations (reduced units)", spec.potential, states.len());
+    println!("cutoff scan: {:?}, averaged over {} configurations (reduced units)", spec.potential, report.configurations);
     println!("{:>12} {:>12} {:>12} {:>16} {:>16}", format!("rc [{len_unit}]"), "U/N (mode)", "P (mode)", "U/N full est.", "P full est.");
-    for r in &crow {
+    for r in crow {
         println!("{:>12.4} {:>12.5} {:>12.5} {:>16.5} {:>16.5}", to_setup_len(r.cutoff), r.potential, r.pressure, r.potential_full_estimate, r.pressure_full_estimate);
     }
     println!("(full estimate: unshifted pair terms inside rc plus analytic tail corrections, g(r) = 1 beyond rc)");

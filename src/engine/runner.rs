@@ -11,7 +11,7 @@ use super::session::Session;
 use super::tuning;
 use crate::io::checkpoint::Checkpoint;
 use crate::io::setup::{Setup, SetupError};
-use crate::physics::{Simulation, SimulationSpec, SimulationState};
+use crate::physics::{SimulationSpec, SimulationState};
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::mpsc::{self, Receiver, RecvTimeoutError, Sender, TryRecvError};
 use std::sync::Arc;
@@ -26,8 +26,6 @@ const BATCH: Duration = Duration::from_millis(15);
 const STATUS_EVERY: Duration = Duration::from_millis(250);
 /// Configurations a cutoff scan averages over: the present state and, from a copy, states this
 /// many steps apart.
-const TUNE_CONFIGURATIONS: usize = 5;
-const TUNE_STEPS_APART: u64 = 200;
 
 /// The window's side of the engine: send commands, read events, take frames.
 pub struct EngineHandle {
@@ -120,45 +118,10 @@ impl TuneJob {
         let cancel = Arc::new(AtomicBool::new(false));
         let stop = cancel.clone();
         let thread = std::thread::Builder::new().name("noblescope-tune".into()).spawn(move || {
-            let _ = tx.send(scan(spec, state, &timesteps, &cutoffs, duration, &stop));
+            let _ = tx.send(tuning::full_scan(spec, state, &timesteps, &cutoffs, duration, &stop));
         })?;
         Ok(TuneJob { result: rx, cancel, thread })
     }
-}
-
-/// The scans of one tuning request; `stop` is checked between trials.
-fn scan(spec: SimulationSpec, state: SimulationState, timesteps: &[f64], cutoffs: &[f64], duration: f64, stop: &AtomicBool) -> Result<TuningReport, String> {
-    let stopped = || if stop.load(Ordering::Relaxed) { Err("the engine stopped".to_string()) } else { Ok(()) };
-    let from_step = state.step;
-    let mut rows = Vec::with_capacity(timesteps.len());
-    for &dt in timesteps {
-        stopped()?;
-        rows.extend(tuning::timestep_scan(&spec, &state, &[dt], duration));
-    }
-    // More configurations for the cutoff averages, from a copy that runs on as the user's would.
-    let mut copy = Simulation::from_state(spec.clone(), state.clone()).map_err(|e| e.to_string())?;
-    let mut states = vec![state];
-    while states.len() < TUNE_CONFIGURATIONS {
-        stopped()?;
-        if copy.run(TUNE_STEPS_APART).is_err() {
-            break;
-        }
-        states.push(copy.state());
-    }
-    let crows = tuning::cutoff_scan(&spec, &states, cutoffs, spec.potential);
-    if let Some(&missing) = cutoffs.iter().find(|&&rc| !crows.iter().any(|r| r.cutoff == rc)) {
-        return Err(format!("cutoffs: {missing} σ could not be evaluated; allowed: cutoff + skin ({} σ) at most half the box ({:.4} σ)", spec.skin, 0.5 * spec.box_length()));
-    }
-    Ok(TuningReport {
-        from_step,
-        reference: spec.kinds[0],
-        potential: spec.potential,
-        duration,
-        configurations: states.len(),
-        recommended: tuning::recommended_timestep(&rows),
-        timesteps: rows,
-        cutoffs: crows,
-    })
 }
 
 impl Engine {

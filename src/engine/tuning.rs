@@ -1,7 +1,9 @@
 //! Timestep and cutoff tuning: short scans from one equilibrated state that show how well each
 //! timestep conserves energy and how far each cutoff is from converged energy and pressure.
 
+use super::protocol::TuningReport;
 use crate::physics::{PotentialMode, Simulation, SimulationSpec, SimulationState, Thermostat};
+use std::sync::atomic::{AtomicBool, Ordering};
 use serde::Serialize;
 
 /// How one timestep fared over a short constant-energy run.
@@ -33,6 +35,11 @@ pub struct CutoffRow {
     pub potential_full_estimate: f64,
     pub pressure_full_estimate: f64,
 }
+
+/// Configurations the cutoff scan averages over.
+pub const TUNE_CONFIGURATIONS: usize = 5;
+/// Steps between those configurations.
+pub const TUNE_STEPS_APART: u64 = 200;
 
 /// Largest ratio of total-energy to kinetic-energy fluctuation accepted for a timestep
 /// (common practice: a few per cent).
@@ -121,6 +128,43 @@ pub fn cutoff_scan(spec: &SimulationSpec, states: &[SimulationState], cutoffs: &
         }
     }
     rows
+}
+
+/// Both scans of one tuning request from `state`: each timestep, then the cutoffs averaged
+/// over `state` and further configurations taken [`TUNE_STEPS_APART`] steps apart on a copy
+/// (the caller's simulation is not touched). `stop` is checked between trials.
+pub fn full_scan(spec: SimulationSpec, state: SimulationState, timesteps: &[f64], cutoffs: &[f64], duration: f64, stop: &AtomicBool) -> Result<TuningReport, String> {
+    let stopped = || if stop.load(Ordering::Relaxed) { Err("the engine stopped".to_string()) } else { Ok(()) };
+    let from_step = state.step;
+    let mut rows = Vec::with_capacity(timesteps.len());
+    for &dt in timesteps {
+        stopped()?;
+        rows.extend(timestep_scan(&spec, &state, &[dt], duration));
+    }
+    // More configurations for the cutoff averages, from a copy that runs on as the user's would.
+    let mut copy = Simulation::from_state(spec.clone(), state.clone()).map_err(|e| e.to_string())?;
+    let mut states = vec![state];
+    while states.len() < TUNE_CONFIGURATIONS {
+        stopped()?;
+        if copy.run(TUNE_STEPS_APART).is_err() {
+            break;
+        }
+        states.push(copy.state());
+    }
+    let crows = cutoff_scan(&spec, &states, cutoffs, spec.potential);
+    if let Some(&missing) = cutoffs.iter().find(|&&rc| !crows.iter().any(|r| r.cutoff == rc)) {
+        return Err(format!("cutoffs: {missing} σ could not be evaluated; allowed: cutoff + skin ({} σ) at most half the box ({:.4} σ)", spec.skin, 0.5 * spec.box_length()));
+    }
+    Ok(TuningReport {
+        from_step,
+        reference: spec.kinds[0],
+        potential: spec.potential,
+        duration,
+        configurations: states.len(),
+        recommended: recommended_timestep(&rows),
+        timesteps: rows,
+        cutoffs: crows,
+    })
 }
 
 fn mean(x: &[f64]) -> f64 {
