@@ -54,9 +54,4 @@ impl RewindBuffer {
     pub fn is_empty(&self) -> bool {
         self.snapshots.is_empty()
     }
-
-    /// Forgets every snapshot.
-    pub fn clear(&mut self) {
-        self.snapshots.clear();
-    }
 }

@@ -8,7 +8,6 @@ use super::forces::{self, ForceScratch, ForceSums};
 use super::lattice;
 use super::neighbours::NeighbourList;
 use super::observables::Observables;
-use super::parallel::ordered_sum;
 use super::potential::{PairTable, PotentialMode};
 use super::random::{Purpose, Stream};
 use super::species::Species;
@@ -549,16 +548,6 @@ impl Simulation {
         }
     }
 
-    /// Per-atom kinetic energies into `out` (resized to N), for views colouring by energy.
-    pub fn kinetic_per_atom(&self, out: &mut Vec<f64>) {
-        out.clear();
-        out.extend((0..self.system.len()).map(|i| self.system.kinetic_of(i)));
-    }
-
-    /// Summed pair energy and virial of the last force evaluation (for tests).
-    pub fn force_sums(&self) -> ForceSums {
-        self.sums
-    }
 }
 
 /// Velocity reversal helper for reversibility checks: v → −v for every atom.
@@ -568,9 +557,4 @@ pub fn reverse_velocities(system: &mut System) {
             *x = -*x;
         }
     }
-}
-
-/// Ordered sum over atoms, exposed for analysis code that must match the engine's rounding.
-pub fn ordered_atom_sum<F: Fn(usize) -> f64 + Sync>(n: usize, f: F) -> f64 {
-    ordered_sum(n, f)
 }
