@@ -5,7 +5,7 @@ use noblescope::engine::bench;
 use noblescope::engine::headless::{self, HeadlessOptions, RunError};
 use noblescope::engine::Session;
 use noblescope::io::checkpoint::Checkpoint;
-use noblescope::io::setup::{Duration, Length};
+use noblescope::io::setup::Length;
 use noblescope::io::Setup;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
@@ -280,42 +280,18 @@ fn parse_size(text: &str) -> Result<[f32; 2], String> {
     Ok([w, h])
 }
 
-/// Scales a unit-carrying setup value: the same variant with a new number.
-fn same_unit_duration(d: Duration, v: f64) -> Duration {
-    match d {
-        Duration::Femtoseconds(_) => Duration::Femtoseconds(v),
-        Duration::Picoseconds(_) => Duration::Picoseconds(v),
-        Duration::Reduced(_) => Duration::Reduced(v),
-    }
-}
-
-fn same_unit_length(l: Length, v: f64) -> Length {
-    match l {
-        Length::Sigma(_) => Length::Sigma(v),
-        Length::Angstrom(_) => Length::Angstrom(v),
-    }
-}
-
-fn duration_value(d: Duration) -> (f64, &'static str) {
-    match d {
-        Duration::Femtoseconds(v) => (v, "fs"),
-        Duration::Picoseconds(v) => (v, "ps"),
-        Duration::Reduced(v) => (v, "tau"),
-    }
-}
-
 fn tune(path: &Path, timesteps: Vec<f64>, cutoffs: Vec<f64>, time: f64, equilibrate: Option<u64>, out: Option<&Path>) -> Result<(), RunError> {
     let bad = |e: noblescope::io::SetupError| RunError::BadInput(format!("{}: {e}", path.display()));
     let setup = Setup::load(path).map_err(|e| RunError::BadInput(e.to_string()))?;
     if !(time > 0.0 && time <= 1000.0) {
         return Err(RunError::BadInput(format!("--time: {time} is out of range; allowed: 0 < time ≤ 1000 τ")));
     }
-    let (dt0, dt_unit) = duration_value(setup.timestep);
+    let (dt0, dt_unit) = (setup.timestep.value(), setup.timestep.symbol());
     let dts: Vec<f64> = if timesteps.is_empty() { [0.5, 1.0, 1.5, 2.0, 3.0].iter().map(|f| f * dt0).collect() } else { timesteps };
     let mut reduced_dts = Vec::new();
     for &v in &dts {
         let mut s = setup.clone();
-        s.timestep = same_unit_duration(setup.timestep, v);
+        s.timestep = setup.timestep.with_value(v);
         s.resolve().map_err(|e| RunError::BadInput(format!("--timesteps: {e}")))?;
         reduced_dts.push(s.reduced_duration("timestep", s.timestep).map_err(bad)?);
     }
@@ -331,7 +307,7 @@ fn tune(path: &Path, timesteps: Vec<f64>, cutoffs: Vec<f64>, time: f64, equilibr
     } else {
         let mut v = Vec::new();
         for &c in &cutoffs {
-            let r = setup.reduced_length("cutoff", same_unit_length(setup.cutoff, c)).map_err(|e| RunError::BadInput(format!("--cutoffs: {e}")))?;
+            let r = setup.reduced_length("cutoff", setup.cutoff.with_value(c)).map_err(|e| RunError::BadInput(format!("--cutoffs: {e}")))?;
             if !(1.0..=10.0).contains(&r) || r + spec.skin > half_box {
                 return Err(RunError::BadInput(format!("--cutoffs: {c} is out of range; allowed: 1 σ to 10 σ with cutoff + skin ≤ half the box ({half_box:.3} σ)")));
             }

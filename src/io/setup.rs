@@ -42,12 +42,49 @@ pub enum Duration {
     Reduced(f64),
 }
 
+impl Duration {
+    /// The number, in whatever unit the variant says.
+    pub fn value(self) -> f64 {
+        match self {
+            Duration::Femtoseconds(v) | Duration::Picoseconds(v) | Duration::Reduced(v) => v,
+        }
+    }
+
+    /// The same unit with another number.
+    pub fn with_value(self, v: f64) -> Duration {
+        match self {
+            Duration::Femtoseconds(_) => Duration::Femtoseconds(v),
+            Duration::Picoseconds(_) => Duration::Picoseconds(v),
+            Duration::Reduced(_) => Duration::Reduced(v),
+        }
+    }
+
+    /// Unit symbol for plain-text output.
+    pub fn symbol(self) -> &'static str {
+        match self {
+            Duration::Femtoseconds(_) => "fs",
+            Duration::Picoseconds(_) => "ps",
+            Duration::Reduced(_) => "tau",
+        }
+    }
+}
+
 /// A length.
 #[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
 pub enum Length {
     /// In σ of the reference species.
     Sigma(f64),
     Angstrom(f64),
+}
+
+impl Length {
+    /// The same unit with another number.
+    pub fn with_value(self, v: f64) -> Length {
+        match self {
+            Length::Sigma(_) => Length::Sigma(v),
+            Length::Angstrom(_) => Length::Angstrom(v),
+        }
+    }
 }
 
 /// A rate (Langevin friction).
