@@ -4,6 +4,7 @@ use super::app::{NoblescopeApp, StartOptions};
 
 /// Opens the workbench window and blocks until it closes.
 pub fn run(opts: StartOptions, size: Option<[f32; 2]>) -> anyhow::Result<()> {
+    keep_freed_memory();
     let scripted = opts.watch.as_ref().is_some_and(|w| w.scripted());
     let mut viewport = egui::ViewportBuilder::default()
         .with_title("Noblescope")
@@ -30,4 +31,17 @@ pub fn run(opts: StartOptions, size: Option<[f32; 2]>) -> anyhow::Result<()> {
         }),
     )
     .map_err(|e| anyhow::anyhow!("the window could not open: {e}"))
+}
+
+/// Tells the C allocator to keep freed memory for reuse instead of handing it back to the
+/// system. Software OpenGL allocates and frees megabyte-sized vertex and bin buffers on every
+/// frame; by default glibc maps and unmaps them each time, and the page faults of touching the
+/// fresh pages cost about 4 ms per frame at 32,000 atoms (measured with perf on the 3D view).
+fn keep_freed_memory() {
+    #[cfg(all(target_os = "linux", target_env = "gnu"))]
+    // SAFETY: mallopt only sets allocator parameters (it takes the allocator's own lock).
+    unsafe {
+        libc::mallopt(libc::M_MMAP_THRESHOLD, 64 << 20);
+        libc::mallopt(libc::M_TRIM_THRESHOLD, 512 << 20);
+    }
 }
