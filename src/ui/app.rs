@@ -23,10 +23,9 @@ pub const BUNDLED_SCENARIO: &str = include_str!("../../assets/krypton-getter-sam
 /// Its name in messages and the title bar.
 pub const BUNDLED_NAME: &str = "krypton-getter-sample.ron";
 
-/// Repaint interval while the simulation runs (about 40 frames per second).
+/// Repaint interval while the simulation runs (about 40 frames per second), counted from the
+/// start of a frame: the next frame is asked for before this one is built.
 pub const RUNNING_FRAME_INTERVAL: Duration = Duration::from_millis(25);
-/// Boxes with more atoms than this are drawn at half resolution while running.
-pub const DRAFT_ABOVE_ATOMS: usize = 8000;
 
 const STORAGE_SETUP: &str = "noblescope.setup";
 const STORAGE_PATH: &str = "noblescope.setup_path";
@@ -715,6 +714,9 @@ impl NoblescopeApp {
         }
         self.frames_drawn += 1;
         self.drain_events();
+        if self.status.status.running || self.watch.is_some() {
+            ctx.request_repaint_after(RUNNING_FRAME_INTERVAL);
+        }
         if let Some(e) = &self.engine {
             e.take_frame(&mut self.frame);
         }
@@ -795,9 +797,6 @@ impl NoblescopeApp {
             let h = ui.available_height();
             let w = ui.available_width();
             let units = self.running.units();
-            // Large boxes are drawn at half resolution while running; full resolution when
-            // paused and for pictures.
-            self.view.half_resolution = self.status.status.running && self.shot_target.is_none() && self.frame.len() > DRAFT_ABOVE_ATOMS;
             ui.allocate_ui(egui::vec2(w, (h * 0.56).max(200.0)), |ui| self.view.show(ui, &self.frame, units));
             ui.separator();
             self.plots.show(ui);
@@ -809,9 +808,6 @@ impl NoblescopeApp {
             let painter = ctx.layer_painter(egui::LayerId::new(egui::Order::Foreground, egui::Id::unique("drop-hint")));
             painter.rect_filled(screen, 0.0, egui::Color32::from_black_alpha(170));
             painter.text(screen.center(), egui::Align2::CENTER_CENTER, "Drop a setup file (.ron) to open it", egui::FontId::proportional(22.0), egui::Color32::WHITE);
-        }
-        if self.status.status.running || self.watch.is_some() {
-            ctx.request_repaint_after(RUNNING_FRAME_INTERVAL);
         }
     }
 

@@ -1,6 +1,10 @@
 //! Shaded spheres through one OpenGL draw call: each atom is a point sprite whose fragment
-//! shader draws a lit sphere. Atom data go into one vertex buffer that is reused from frame
-//! to frame (grown only when the atom count grows).
+//! shader draws a lit sphere. Atoms arrive farthest first, so later (nearer) sprites paint
+//! over earlier ones and no depth buffer is needed: each sprite is a disc at one depth, so
+//! this gives the picture a depth test would. Atom data go into one vertex buffer that is
+//! reused from frame to frame (grown only when the atom count grows). The view is not
+//! cleared: it shows the window's background, which software OpenGL clears for free, while a
+//! clear limited to the view would cost a full pass over its pixels.
 //!
 //! The renderer is created lazily inside the paint callback, so the UI also runs where no
 //! OpenGL context exists (tests); there the callback is simply never called.
@@ -16,7 +20,7 @@ pub const FLOATS_PER_ATOM: usize = 7;
 /// fills it, and the paint callback, which uploads and draws it.
 #[derive(Debug, Default)]
 pub struct SphereScene {
-    /// `FLOATS_PER_ATOM` floats per atom.
+    /// `FLOATS_PER_ATOM` floats per atom, farthest atom first.
     pub vertices: Vec<f32>,
     /// Bumped whenever `vertices` changed, so unchanged data are not uploaded again.
     pub generation: u64,
@@ -27,12 +31,6 @@ pub struct SphereScene {
     /// Pixels per σ at unit view distance (perspective) or everywhere (orthographic).
     pub pixels_per_unit: f32,
     pub orthographic: bool,
-    /// Colour the view is cleared to (gamma-space RGBA), cheaper than painting a rectangle.
-    pub background: [f32; 4],
-    /// Fraction of the view's resolution the spheres are drawn at (1 = full). Below 1 they
-    /// are drawn into an offscreen target and scaled up with linear filtering: software
-    /// OpenGL pays per fragment, so half resolution costs about a quarter.
-    pub resolution: f32,
 }
 
 impl SphereScene {
@@ -54,16 +52,6 @@ struct Gl {
     u_scale: Option<glow::UniformLocation>,
     u_ortho: Option<glow::UniformLocation>,
     embedded: bool,
-    /// Offscreen target for reduced-resolution drawing, created on first use.
-    target: Option<Target>,
-}
-
-/// A framebuffer with colour and depth renderbuffers of one size.
-struct Target {
-    fbo: glow::Framebuffer,
-    colour: glow::Renderbuffer,
-    depth: glow::Renderbuffer,
-    size: (i32, i32),
 }
 
 /// The sphere renderer: scene data plus the GL objects, created on first paint.
@@ -136,14 +124,14 @@ impl SphereRenderer {
         let gl = self.gl.clone();
         egui::PaintCallback {
             rect,
-            callback: Arc::new(egui_glow::CallbackFn::new(move |info, painter| {
+            callback: Arc::new(egui_glow::CallbackFn::new(move |_info, painter| {
                 let mut slot = gl.lock().unwrap_or_else(|p| p.into_inner());
                 if slot.is_none() {
                     *slot = Some(unsafe { Gl::new(painter.gl()) });
                 }
                 if let Some(Ok(g)) = slot.as_mut() {
                     let scene = scene.lock().unwrap_or_else(|p| p.into_inner());
-                    unsafe { g.paint(painter.gl(), &scene, &info) };
+                    unsafe { g.paint(painter.gl(), &scene) };
                 }
             })),
         }
@@ -156,11 +144,6 @@ impl SphereRenderer {
                 gl.delete_program(g.program);
                 gl.delete_vertex_array(g.vao);
                 gl.delete_buffer(g.vbo);
-                if let Some(t) = g.target {
-                    gl.delete_framebuffer(t.fbo);
-                    gl.delete_renderbuffer(t.colour);
-                    gl.delete_renderbuffer(t.depth);
-                }
             }
         }
     }
@@ -222,105 +205,18 @@ impl Gl {
                 capacity: 0,
                 uploaded: u64::MAX,
                 embedded,
-                target: None,
             })
         }
     }
 
-    /// The offscreen target at `size`, (re)created when the size changes.
-    unsafe fn target(&mut self, gl: &glow::Context, size: (i32, i32)) -> Result<glow::Framebuffer, String> {
-        if let Some(t) = &self.target {
-            if t.size == size {
-                return Ok(t.fbo);
-            }
-        }
-        unsafe {
-            if let Some(t) = self.target.take() {
-                gl.delete_framebuffer(t.fbo);
-                gl.delete_renderbuffer(t.colour);
-                gl.delete_renderbuffer(t.depth);
-            }
-            let fbo = gl.create_framebuffer()?;
-            let colour = gl.create_renderbuffer()?;
-            let depth = gl.create_renderbuffer()?;
-            gl.bind_renderbuffer(glow::RENDERBUFFER, Some(colour));
-            gl.renderbuffer_storage(glow::RENDERBUFFER, glow::RGBA8, size.0, size.1);
-            gl.bind_renderbuffer(glow::RENDERBUFFER, Some(depth));
-            gl.renderbuffer_storage(glow::RENDERBUFFER, glow::DEPTH_COMPONENT24, size.0, size.1);
-            gl.bind_renderbuffer(glow::RENDERBUFFER, None);
-            gl.bind_framebuffer(glow::FRAMEBUFFER, Some(fbo));
-            gl.framebuffer_renderbuffer(glow::FRAMEBUFFER, glow::COLOR_ATTACHMENT0, glow::RENDERBUFFER, Some(colour));
-            gl.framebuffer_renderbuffer(glow::FRAMEBUFFER, glow::DEPTH_ATTACHMENT, glow::RENDERBUFFER, Some(depth));
-            let complete = gl.check_framebuffer_status(glow::FRAMEBUFFER) == glow::FRAMEBUFFER_COMPLETE;
-            self.target = Some(Target { fbo, colour, depth, size });
-            if !complete {
-                return Err("offscreen sphere target is incomplete".into());
-            }
-            Ok(fbo)
-        }
-    }
-
-    unsafe fn paint(&mut self, gl: &glow::Context, scene: &SphereScene, info: &egui::PaintCallbackInfo) {
-        let vp = info.viewport_in_pixels();
-        let clip = info.clip_rect_in_pixels();
-        let scale = scene.resolution.clamp(0.25, 1.0);
-        unsafe {
-            if scale < 1.0 && scene.atoms() > 0 {
-                let size = (((vp.width_px as f32) * scale).ceil().max(1.0) as i32, ((vp.height_px as f32) * scale).ceil().max(1.0) as i32);
-                let previous = gl.get_parameter_i32(glow::DRAW_FRAMEBUFFER_BINDING) as u32;
-                let previous = std::num::NonZeroU32::new(previous).map(glow::NativeFramebuffer);
-                if let Ok(fbo) = self.target(gl, size) {
-                    gl.bind_framebuffer(glow::FRAMEBUFFER, Some(fbo));
-                    gl.disable(glow::SCISSOR_TEST);
-                    gl.viewport(0, 0, size.0, size.1);
-                    self.draw(gl, scene, scale);
-                    // Scale up into the view, clipped by egui's scissor.
-                    gl.bind_framebuffer(glow::READ_FRAMEBUFFER, Some(fbo));
-                    gl.bind_framebuffer(glow::DRAW_FRAMEBUFFER, previous);
-                    gl.enable(glow::SCISSOR_TEST);
-                    gl.scissor(clip.left_px, clip.from_bottom_px, clip.width_px, clip.height_px);
-                    gl.blit_framebuffer(
-                        0,
-                        0,
-                        size.0,
-                        size.1,
-                        vp.left_px,
-                        vp.from_bottom_px,
-                        vp.left_px + vp.width_px,
-                        vp.from_bottom_px + vp.height_px,
-                        glow::COLOR_BUFFER_BIT,
-                        glow::LINEAR,
-                    );
-                    gl.bind_framebuffer(glow::FRAMEBUFFER, previous);
-                    gl.viewport(vp.left_px, vp.from_bottom_px, vp.width_px, vp.height_px);
-                    return;
-                }
-                gl.bind_framebuffer(glow::FRAMEBUFFER, previous);
-                gl.viewport(vp.left_px, vp.from_bottom_px, vp.width_px, vp.height_px);
-            }
-            // Full resolution, straight into the window; depth only inside this view: the
-            // scissor egui set limits the clear.
-            gl.enable(glow::SCISSOR_TEST);
-            gl.scissor(clip.left_px, clip.from_bottom_px, clip.width_px, clip.height_px);
-            self.draw(gl, scene, 1.0);
-        }
-    }
-
-    /// Clears the bound target and draws the spheres; `scale` shrinks point sizes to match a
-    /// reduced-resolution target.
-    unsafe fn draw(&mut self, gl: &glow::Context, scene: &SphereScene, scale: f32) {
+    /// Draws the spheres into the viewport egui set up, clipped by its scissor.
+    unsafe fn paint(&mut self, gl: &glow::Context, scene: &SphereScene) {
         let n = scene.atoms();
+        if n == 0 {
+            return;
+        }
         unsafe {
-            gl.depth_mask(true);
-            gl.clear_depth_f32(1.0);
-            let [r, g, b, a] = scene.background;
-            gl.clear_color(r, g, b, a);
-            gl.clear(glow::DEPTH_BUFFER_BIT | glow::COLOR_BUFFER_BIT);
-            if n == 0 {
-                return;
-            }
-            gl.enable(glow::DEPTH_TEST);
-            gl.depth_func(glow::LESS);
+            gl.disable(glow::DEPTH_TEST);
             gl.disable(glow::BLEND);
             if !self.embedded {
                 gl.enable(glow::PROGRAM_POINT_SIZE);
@@ -343,12 +239,11 @@ impl Gl {
             }
             gl.uniform_matrix_4_f32_slice(self.u_view.as_ref(), false, &scene.view);
             gl.uniform_matrix_4_f32_slice(self.u_proj.as_ref(), false, &scene.proj);
-            gl.uniform_1_f32(self.u_scale.as_ref(), scene.pixels_per_unit * scale);
+            gl.uniform_1_f32(self.u_scale.as_ref(), scene.pixels_per_unit);
             gl.uniform_1_f32(self.u_ortho.as_ref(), if scene.orthographic { 1.0 } else { 0.0 });
             gl.draw_arrays(glow::POINTS, 0, n as i32);
             gl.bind_vertex_array(None);
             gl.bind_buffer(glow::ARRAY_BUFFER, None);
-            gl.disable(glow::DEPTH_TEST);
             if !self.embedded {
                 gl.disable(glow::PROGRAM_POINT_SIZE);
             }

@@ -48,7 +48,7 @@ pub fn species_rgb(s: Species) -> [f32; 3] {
     [c.r() as f32 / 255.0, c.g() as f32 / 255.0, c.b() as f32 / 255.0]
 }
 
-/// Background of the particle views.
+/// Background of the window and so of the particle views.
 pub const VIEW_BACKGROUND: Color32 = Color32::from_rgb(0x16, 0x1A, 0x21);
 /// Periodic box outline.
 pub const BOX_LINE: Color32 = Color32::from_rgb(0x8A, 0x93, 0xA3);

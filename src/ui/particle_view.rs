@@ -69,10 +69,10 @@ pub struct ParticleView {
     /// Settings, frame step, atom count and view size the vertex buffer was last filled for.
     filled_for: Option<(ViewSettings, u64, usize, [u32; 2])>,
     culler: Culler,
-    /// Draw the spheres at half resolution (set by the window while a large box runs).
-    pub half_resolution: bool,
-    /// View depth and index of the atoms kept by the culler, sorted nearest first.
-    order: Vec<(f32, u32)>,
+    /// Atoms the culler kept in the last fill, nearest first.
+    kept: Vec<u32>,
+    /// Atoms the last fill placed in the view (all in 3D, those in the slab in 2D).
+    placed: usize,
     /// Upper end of the colour scale of the last fill (σ/τ or ε).
     scale_max: f32,
     shown: usize,
@@ -81,7 +81,7 @@ pub struct ParticleView {
 impl ParticleView {
     /// A view with the given settings.
     pub fn new(settings: ViewSettings) -> Self {
-        ParticleView { settings, renderer: SphereRenderer::new(), filled_for: None, culler: Culler::new(), half_resolution: false, order: Vec::new(), scale_max: 1.0, shown: 0 }
+        ParticleView { settings, renderer: SphereRenderer::new(), filled_for: None, culler: Culler::new(), kept: Vec::new(), placed: 0, scale_max: 1.0, shown: 0 }
     }
 
     /// The renderer (to free its GL objects on exit).
@@ -89,7 +89,7 @@ impl ParticleView {
         &self.renderer
     }
 
-    /// Atoms drawn in the last fill (all, or those in the slab).
+    /// Atoms drawn in the last fill (those not hidden behind others).
     pub fn shown(&self) -> usize {
         self.shown
     }
@@ -106,7 +106,6 @@ impl ParticleView {
         self.fill(frame, rect, ppp);
         let painter = ui.painter_at(rect);
         if frame.is_empty() {
-            painter.rect_filled(rect, 4.0, palette::VIEW_BACKGROUND);
             painter.text(rect.center(), egui::Align2::CENTER_CENTER, "waiting for the first frame…", egui::FontId::proportional(15.0), palette::BOX_LINE);
         } else {
             painter.add(self.renderer.callback(rect));
@@ -172,10 +171,9 @@ impl ParticleView {
         }
     }
 
-    /// View and projection for the present mode, and pixels per σ.
-    fn camera(&self, rect: egui::Rect, ppp: f32, l: f32) -> (Mat4, Mat4, f32, bool) {
+    /// View and projection for the present mode, and whether it is orthographic.
+    fn camera(&self, rect: egui::Rect, l: f32) -> (Mat4, Mat4, bool) {
         let aspect = (rect.width() / rect.height().max(1.0)).max(0.05);
-        let h_px = rect.height() * ppp;
         match self.settings.mode {
             ViewMode::Box3d => {
                 let o = &self.settings.orbit;
@@ -185,32 +183,33 @@ impl ParticleView {
                 let view = glam::camera::rh::view::look_at_mat4(eye, centre, Vec3::Y);
                 let fov = 35f32.to_radians();
                 let proj = glam::camera::rh::proj::opengl::perspective(fov, aspect, 0.05 * l, 20.0 * l);
-                (view, proj, proj.y_axis.y * h_px * 0.5, false)
+                (view, proj, false)
             }
             ViewMode::Slab => {
                 let half = 0.55 * l;
                 let (hw, hh) = if aspect >= 1.0 { (half * aspect, half) } else { (half, half / aspect) };
                 let view = Mat4::from_translation(Vec3::new(-0.5 * l, -0.5 * l, 0.0));
                 let proj = glam::camera::rh::proj::opengl::orthographic(-hw, hw, -hh, hh, -l, l);
-                (view, proj, h_px / (2.0 * hh), true)
+                (view, proj, true)
             }
         }
     }
 
     /// Refills the vertex buffer if the frame or the look changed (no allocation once the
-    /// buffer has grown to the atom count).
+    /// buffers have grown to the atom count).
     fn fill(&mut self, frame: &Frame, rect: egui::Rect, ppp: f32) {
         let l = frame.box_length.max(1e-3);
-        let (view, proj, ppu, ortho) = self.camera(rect, ppp, l);
-        let (view, proj) = (view, proj);
+        let (view, proj, ortho) = self.camera(rect, l);
+        // The view in whole pixels, rounded as egui rounds the paint callback's viewport.
+        let px = [((rect.max.x * ppp).round() - (rect.min.x * ppp).round()).max(1.0) as u32, ((rect.max.y * ppp).round() - (rect.min.y * ppp).round()).max(1.0) as u32];
+        let (w_px, h_px) = (px[0] as f32, px[1] as f32);
+        // Pixels per σ at unit view distance (perspective) or everywhere (orthographic).
+        let ppu = proj.y_axis.y * 0.5 * h_px;
         let mut scene = self.renderer.scene().lock().unwrap_or_else(|p| p.into_inner());
         scene.view = view.to_cols_array();
         scene.proj = proj.to_cols_array();
         scene.pixels_per_unit = ppu;
         scene.orthographic = ortho;
-        scene.background = palette::VIEW_BACKGROUND.to_normalized_gamma_f32();
-        scene.resolution = if self.half_resolution { 0.5 } else { 1.0 };
-        let px = [(rect.width() * ppp) as u32, (rect.height() * ppp) as u32];
         let key = (self.settings, frame.step, frame.len(), px);
         if self.filled_for == Some(key) {
             return;
@@ -234,49 +233,48 @@ impl ParticleView {
             }
         };
         let radius = |i: usize| frame.sigmas.get(frame.types[i] as usize).copied().unwrap_or(1.0) * size;
+        let mode = self.settings.mode;
+        let slab = self.settings.slab;
+        let (_, right, up) = slab.axis.indices();
+        // Where atom i is drawn: its position (3D) or its slab coordinates (2D), if at all.
+        let place = |i: usize| -> Option<[f32; 3]> {
+            let p = frame.positions[i];
+            match mode {
+                ViewMode::Box3d => Some(p),
+                ViewMode::Slab => slab.depth(p, l).map(|d| [p[right], p[up], d]),
+            }
+        };
+        let near = 0.05 * l;
+        let project = |i: usize| -> Option<Projected> {
+            let p = place(i)?;
+            let q = view * Vec4::new(p[0], p[1], p[2], 1.0);
+            let depth = -q.z;
+            if !ortho && depth <= near {
+                return None;
+            }
+            let c = proj * q;
+            let (nx, ny) = (c.x / c.w, c.y / c.w);
+            // As the vertex shader sizes the point sprite (never below 1.5 pixels).
+            let s = if ortho { ppu } else { ppu / depth };
+            let r = (radius(i) * s).max(0.75);
+            Some(Projected { x: (nx * 0.5 + 0.5) * w_px, y: (0.5 - ny * 0.5) * h_px, r, depth })
+        };
+        let kept = &mut self.kept;
+        kept.clear();
+        self.culler.run(frame.len(), px[0] as usize, px[1] as usize, project, |i| kept.push(i as u32));
+        self.placed = match mode {
+            ViewMode::Box3d => frame.len(),
+            ViewMode::Slab => (0..frame.len()).filter(|&i| place(i).is_some()).count(),
+        };
+        // Farthest first, so nearer sprites paint over farther ones.
         let v = &mut scene.vertices;
         v.clear();
-        match self.settings.mode {
-            ViewMode::Box3d => {
-                v.reserve(frame.len() * FLOATS_PER_ATOM);
-                let (w_px, h_px) = (px[0] as f32, px[1] as f32);
-                let fy = proj.y_axis.y * 0.5 * h_px;
-                let near = 0.05 * l;
-                let project = |i: usize| -> Option<Projected> {
-                    let p = frame.positions[i];
-                    let q = view * Vec4::new(p[0], p[1], p[2], 1.0);
-                    let depth = -q.z;
-                    if depth <= near {
-                        return None;
-                    }
-                    let c = proj * q;
-                    let (nx, ny) = (c.x / c.w, c.y / c.w);
-                    let radius = radius(i);
-                    Some(Projected { x: (nx * 0.5 + 0.5) * w_px, y: (0.5 - ny * 0.5) * h_px, r: radius * fy / depth, depth, radius })
-                };
-                let centre_depth = (view * Vec4::new(0.5 * l, 0.5 * l, 0.5 * l, 1.0)).z.abs().max(near);
-                let typical = frame.sigmas.first().copied().unwrap_or(1.0) * size * fy / centre_depth;
-                // Nearest first: the depth test then rejects hidden fragments before shading,
-                // which is most of the cost in software OpenGL.
-                let order = &mut self.order;
-                order.clear();
-                self.culler.run(frame.len(), w_px, h_px, 0.5 * typical, project, |i| {
-                    let p = frame.positions[i];
-                    order.push(((view * Vec4::new(p[0], p[1], p[2], 1.0)).z, i as u32));
-                });
-                order.sort_unstable_by(|a, b| b.0.total_cmp(&a.0));
-                for &(_, i) in order.iter() {
-                    let i = i as usize;
-                    let p = frame.positions[i];
-                    let c = colour(i);
-                    v.extend_from_slice(&[p[0], p[1], p[2], radius(i), c[0], c[1], c[2]]);
-                }
-            }
-            ViewMode::Slab => {
-                self.settings.slab.select(frame, |i, x, y, d| {
-                    let c = colour(i);
-                    v.extend_from_slice(&[x, y, d, radius(i), c[0], c[1], c[2]]);
-                });
+        v.reserve(kept.len() * FLOATS_PER_ATOM);
+        for &i in kept.iter().rev() {
+            let i = i as usize;
+            if let Some(p) = place(i) {
+                let c = colour(i);
+                v.extend_from_slice(&[p[0], p[1], p[2], radius(i), c[0], c[1], c[2]]);
             }
         }
         self.shown = v.len() / FLOATS_PER_ATOM;
@@ -285,8 +283,7 @@ impl ParticleView {
 
     /// The periodic box (3D) or the slab's square (2D), drawn over the spheres.
     fn outline(&self, painter: &egui::Painter, rect: egui::Rect, l: f32) {
-        let ppp = painter.ctx().pixels_per_point();
-        let (view, proj, _, _) = self.camera(rect, ppp, l);
+        let (view, proj, _) = self.camera(rect, l);
         let vp = proj * view;
         let to_screen = |p: Vec3| -> Option<egui::Pos2> {
             let c = vp * Vec4::new(p.x, p.y, p.z, 1.0);
@@ -354,7 +351,7 @@ impl ParticleView {
             ui.separator();
             ui.weak(match self.settings.mode {
                 ViewMode::Box3d => format!("{} atoms, box edge {:.2} σ ({} drawn, the rest are hidden behind them)", frame.len(), frame.box_length, self.shown),
-                ViewMode::Slab => format!("{} of {} atoms in the slab", self.shown, frame.len()),
+                ViewMode::Slab => format!("{} of {} atoms in the slab ({} drawn, the rest are hidden behind them)", self.placed, frame.len(), self.shown),
             });
         });
     }
