@@ -37,8 +37,9 @@ const TILE_ROWS: usize = 8;
 #[derive(Debug, Default)]
 pub struct Culler {
     cover: Coverage,
-    /// (depth key, slot in `discs`) of the atoms on screen; sorted nearest first in `run`.
-    order: Vec<(u32, u32)>,
+    /// Depth key (high half) and slot in `discs` (low half) of the atoms on screen; sorted
+    /// nearest first in `run`.
+    order: Vec<u64>,
     /// Screen disc and atom index of each atom on screen.
     discs: Vec<(Projected, u32)>,
 }
@@ -61,13 +62,13 @@ impl Culler {
         for i in 0..n {
             let Some(p) = project(i) else { continue };
             if p.depth.is_finite() && p.r > 0.0 && p.x + p.r >= 0.0 && p.x - p.r <= wf && p.y + p.r >= 0.0 && p.y - p.r <= hf {
-                self.order.push((order_key(p.depth), self.discs.len() as u32));
+                self.order.push((order_key(p.depth) as u64) << 32 | self.discs.len() as u64);
                 self.discs.push((p, i as u32));
             }
         }
         self.order.sort_unstable();
-        for &(_, slot) in &self.order {
-            let (p, atom) = self.discs[slot as usize];
+        for &key in &self.order {
+            let (p, atom) = self.discs[key as u32 as usize];
             if self.cover.sweep(&p) {
                 keep(atom as usize);
             }

@@ -245,14 +245,17 @@ impl ParticleView {
             }
         };
         let near = 0.05 * l;
+        let clip = proj * view;
+        let eye_z = view.row(2);
         let project = |i: usize| -> Option<Projected> {
             let p = place(i)?;
-            let q = view * Vec4::new(p[0], p[1], p[2], 1.0);
-            let depth = -q.z;
+            let p = Vec4::new(p[0], p[1], p[2], 1.0);
+            let c = clip * p;
+            // Perspective: w is the distance in front of the camera.
+            let depth = if ortho { -eye_z.dot(p) } else { c.w };
             if !ortho && depth <= near {
                 return None;
             }
-            let c = proj * q;
             let (nx, ny) = (c.x / c.w, c.y / c.w);
             // As the vertex shader sizes the point sprite (never below 1.5 pixels).
             let s = if ortho { ppu } else { ppu / depth };
