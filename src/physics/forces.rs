@@ -1,7 +1,7 @@
 //! Lennard-Jones forces, potential energy and virial over the half neighbour list.
 
 use super::neighbours::{nearest_integer, separation, NeighbourList};
-use super::parallel::SharedMut;
+use super::parallel::{SharedMut, ELEMENTWISE_TASK};
 use super::potential::{PairTable, PotentialMode};
 use rayon::prelude::*;
 
@@ -34,7 +34,7 @@ pub fn compute(
     forces: &mut [[f64; 3]],
     scratch: &mut ForceScratch,
 ) -> ForceSums {
-    forces.par_iter_mut().with_min_len(4096).for_each(|f| *f = [0.0; 3]);
+    forces.par_iter_mut().with_min_len(ELEMENTWISE_TASK).for_each(|f| *f = [0.0; 3]);
     let slabs = list.slabs();
     scratch.slab_sums.clear();
     scratch.slab_sums.resize(slabs, ForceSums::default());

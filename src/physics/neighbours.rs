@@ -7,7 +7,7 @@
 //! s ≡ 0, 1, 2 (mod 3) in three phases: within a phase no two slabs write the same atom, and the
 //! order of additions into every atom is fixed by geometry alone, never by the thread count.
 
-use super::parallel::SharedMut;
+use super::parallel::{SharedMut, ELEMENTWISE_TASK};
 use rayon::prelude::*;
 
 /// Atoms per storage chunk of the list; each chunk is built by one task, in one pass.
@@ -174,7 +174,7 @@ impl NeighbourList {
         }
         let limit = 0.25 * self.skin * self.skin;
         let (l, inv_l) = (self.box_length, 1.0 / self.box_length);
-        positions.par_iter().zip(self.reference.par_iter()).with_min_len(1024).any(|(p, r)| {
+        positions.par_iter().zip(self.reference.par_iter()).with_min_len(ELEMENTWISE_TASK).any(|(p, r)| {
             let r = [r[0] as f64, r[1] as f64, r[2] as f64];
             // Not finite (a blown-up run) also counts as moved.
             let d2 = separation(p, &r, l, inv_l).1;
@@ -191,7 +191,7 @@ impl NeighbourList {
     pub fn build(&mut self, positions: &[[f64; 3]], box_length: f64) {
         let l = box_length;
         self.reference.clear();
-        self.reference.par_extend(positions.par_iter().map(|p| [fold(p[0], l) as f32, fold(p[1], l) as f32, fold(p[2], l) as f32]));
+        self.reference.par_extend(positions.par_iter().with_min_len(ELEMENTWISE_TASK).map(|p| [fold(p[0], l) as f32, fold(p[1], l) as f32, fold(p[2], l) as f32]));
         self.build_from_reference(l);
     }
 

@@ -5,11 +5,19 @@ use rayon::prelude::*;
 /// Fixed chunk length for ordered reductions; independent of the thread count by design.
 pub const CHUNK: usize = 4096;
 
+/// Fewest elements one task of a cheap element-by-element loop takes (kicks, drifts, the skin
+/// check). Such a loop over 32,000 atoms takes tens of microseconds, about what handing work
+/// to another thread and waiting for it back costs, and on a busy machine (beside the window)
+/// that wait can be much longer; so loops this short run on one thread. Element-wise loops
+/// give the same result however they are split.
+pub const ELEMENTWISE_TASK: usize = 1 << 15;
+
 /// Σ f(i) for i in 0..n, summed chunk by chunk in index order so the rounding is always the same.
 pub fn ordered_sum<F: Fn(usize) -> f64 + Sync>(n: usize, f: F) -> f64 {
     let chunks = n.div_ceil(CHUNK);
     let partial: Vec<f64> = (0..chunks)
         .into_par_iter()
+        .with_min_len(ELEMENTWISE_TASK / CHUNK)
         .map(|c| {
             let mut s = 0.0;
             for i in c * CHUNK..((c + 1) * CHUNK).min(n) {

@@ -8,6 +8,7 @@ use super::forces::{self, ForceScratch, ForceSums};
 use super::lattice;
 use super::neighbours::NeighbourList;
 use super::observables::Observables;
+use super::parallel::ELEMENTWISE_TASK;
 use super::potential::{PairTable, PotentialMode};
 use super::random::{Purpose, Stream};
 use super::species::Species;
@@ -429,7 +430,7 @@ impl Simulation {
         let (seed, step) = (self.spec.seed, self.step);
         let s = &mut self.system;
         let masses = &s.masses;
-        s.velocities.par_iter_mut().zip(s.types.par_iter()).enumerate().with_min_len(1024).for_each(|(i, (v, &t))| {
+        s.velocities.par_iter_mut().zip(s.types.par_iter()).enumerate().with_min_len(ELEMENTWISE_TASK / 8).for_each(|(i, (v, &t))| {
             let mut rng = Stream::new(seed, Purpose::Langevin, step, i as u64);
             let w = noise * (target / masses[t as usize]).sqrt();
             for x in v.iter_mut() {
@@ -451,7 +452,7 @@ impl Simulation {
         let mut rng = thermostat::rescale_stream(self.spec.seed, self.step, half);
         let k_new = thermostat::rescaled_kinetic(k, 0.5 * dof * target, dof, dt, tau, &mut rng).max(0.0);
         let alpha = (k_new / k).sqrt();
-        self.system.velocities.par_iter_mut().with_min_len(4096).for_each(|v| {
+        self.system.velocities.par_iter_mut().with_min_len(ELEMENTWISE_TASK).for_each(|v| {
             for x in v.iter_mut() {
                 *x *= alpha;
             }
@@ -462,7 +463,7 @@ impl Simulation {
     fn kick(&mut self, h: f64) {
         let s = &mut self.system;
         let masses = &s.masses;
-        s.velocities.par_iter_mut().zip(s.forces.par_iter()).zip(s.types.par_iter()).with_min_len(4096).for_each(|((v, f), &t)| {
+        s.velocities.par_iter_mut().zip(s.forces.par_iter()).zip(s.types.par_iter()).with_min_len(ELEMENTWISE_TASK).for_each(|((v, f), &t)| {
             let a = h / masses[t as usize];
             v[0] += a * f[0];
             v[1] += a * f[1];
@@ -472,7 +473,7 @@ impl Simulation {
 
     fn drift(&mut self, h: f64) {
         let s = &mut self.system;
-        s.positions.par_iter_mut().zip(s.velocities.par_iter()).with_min_len(4096).for_each(|(x, v)| {
+        s.positions.par_iter_mut().zip(s.velocities.par_iter()).with_min_len(ELEMENTWISE_TASK).for_each(|(x, v)| {
             x[0] += h * v[0];
             x[1] += h * v[1];
             x[2] += h * v[2];
