@@ -2,7 +2,7 @@
 # Opens the real window under Xvfb with Mesa's software OpenGL (llvmpipe), in scripted watch
 # mode, for each view; writes PNGs and JSON reports into screenshots/ and fails (non-zero exit)
 # on a missing or blank picture or a report without frames. Also measures the 32 000-atom 3D
-# view against the headless benchmark.
+# view against the headless benchmark (PAIRS interleaved pairs; SKIP_PERF=1 leaves this out).
 #
 # Uses $DISPLAY if set, else starts its own Xvfb. Needs: Xvfb, Mesa (llvmpipe), python3.
 set -euo pipefail
@@ -61,19 +61,33 @@ shot view-slab assets/krypton-getter-sample.ron 90 slab
 shot view-setup assets/krypton-getter-sample.ron 60 setup
 shot view-tuning assets/krypton-getter-sample.ron 60 tuning
 if [[ "${SKIP_PERF:-0}" != 1 ]]; then
-    shot perf-32k-3d assets/reduced-liquid-32k.ron 400 3d
-    "$bin" bench --atoms 32000 --json "$out/bench-32k.json" | tail -n 1
-    python3 - "$out/perf-32k-3d.json" "$out/bench-32k.json" <<'PY' || true
-import json, sys
-w = json.load(open(sys.argv[1]))
-b = json.load(open(sys.argv[2]))[0]
-print(f"32k atoms: displayed {w['atom_steps_per_second']:.3e} vs headless {b['atom_steps_per_second']:.3e} atom-steps/s "
-      f"= {100 * w['atom_steps_per_second'] / b['atom_steps_per_second']:.0f}%; frame p95 {w['frame_time_p95_ms']:.1f} ms")
+    # The machine's own speed drifts (a shared virtual machine varied by ±25 % within minutes),
+    # so the window is timed in PAIRS interleaved pairs, each beside a headless run of the same
+    # liquid, and the ratios are reported one by one and as a median.
+    pairs="${PAIRS:-3}"
+    for k in $(seq "$pairs"); do
+        "$bin" bench --atoms 32000 --steps 400 --json "$out/bench-32k-$k.json" >/dev/null
+        shot "perf-32k-3d-$k" assets/reduced-liquid-32k.ron 400 3d
+    done
+    python3 - "$out" "$pairs" <<'PY' || true
+import json, statistics, sys
+out, pairs = sys.argv[1], int(sys.argv[2])
+ratios, p95s = [], []
+for k in range(1, pairs + 1):
+    w = json.load(open(f"{out}/perf-32k-3d-{k}.json"))
+    b = json.load(open(f"{out}/bench-32k-{k}.json"))[0]
+    r = w["atom_steps_per_second"] / b["atom_steps_per_second"]
+    ratios.append(r)
+    p95s.append(w["frame_time_p95_ms"])
+    print(f"pair {k}: frame p50 {w['frame_time_p50_ms']:.1f} ms, p95 {w['frame_time_p95_ms']:.1f} ms; "
+          f"displayed {w['atom_steps_per_second']:.3e} vs headless {b['atom_steps_per_second']:.3e} atom-steps/s = {100 * r:.0f}%")
+print(f"32k atoms, {pairs} pairs: frame p95 median {statistics.median(p95s):.1f} ms (worst {max(p95s):.1f}); "
+      f"simulation while displayed median {100 * statistics.median(ratios):.0f}% of headless (range {100 * min(ratios):.0f}-{100 * max(ratios):.0f}%)")
 PY
 fi
 
 pngs=("$out"/view-3d.png "$out"/view-slab.png "$out"/view-setup.png "$out"/view-tuning.png)
-[[ "${SKIP_PERF:-0}" == 1 ]] || pngs+=("$out"/perf-32k-3d.png)
+[[ "${SKIP_PERF:-0}" == 1 ]] || pngs+=("$out"/perf-32k-3d-1.png)
 python3 scripts/check_png.py "${pngs[@]}" || fail=1
 if [[ $fail != 0 ]]; then
     echo "screenshots: FAILED" >&2
