@@ -131,3 +131,31 @@ fn bad_requests_name_the_field_the_value_and_the_range() {
     h.send(tune(&[0.005], &[2.5], 0.2));
     assert!(wait_for(&h, &mut seen, 60, |e| matches!(e, Event::Tuned(_))).is_some());
 }
+
+#[test]
+fn a_running_scan_can_be_stopped_and_another_started() {
+    let h = EngineHandle::spawn(small()).unwrap();
+    let mut seen = Vec::new();
+    assert!(wait_for(&h, &mut seen, 10, |e| matches!(e, Event::Started { .. })).is_some());
+    // Nothing to stop yet.
+    h.send(Command::CancelTune);
+    match wait_for(&h, &mut seen, 10, |e| matches!(e, Event::Rejected { .. })) {
+        Some(Event::Rejected { command, reason }) => {
+            assert_eq!(command, "CancelTune");
+            assert!(reason.contains("no tuning scan is running"), "{reason}");
+        }
+        e => panic!("no rejection: {e:?}"),
+    }
+    // A scan long enough to be caught running: 12 timesteps of 40 τ each.
+    let long: Vec<f64> = (1..=12).map(|k| 0.0005 * k as f64).collect();
+    h.send(tune(&long, &[2.0], 40.0));
+    h.send(Command::CancelTune);
+    assert!(wait_for(&h, &mut seen, 10, |e| matches!(e, Event::TuneCancelled)).is_some(), "saw {seen:?}");
+    // The engine takes a new scan at once, and only that one reports.
+    seen.clear();
+    h.send(tune(&[0.005], &[2.5], 1.0));
+    let Some(Event::Tuned(report)) = wait_for(&h, &mut seen, 120, |e| matches!(e, Event::Tuned(_))) else { panic!("no results; saw {seen:?}") };
+    assert_eq!(report.timesteps.len(), 1);
+    assert!(!seen.iter().any(|e| matches!(e, Event::Rejected { .. })), "{seen:?}");
+    assert!(wait_for(&h, &mut seen, 3, |e| matches!(e, Event::Tuned(_))).is_none(), "the stopped scan reported too");
+}

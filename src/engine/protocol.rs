@@ -35,6 +35,9 @@ pub enum Command {
     /// on copies: the user's simulation is not advanced. The scan runs beside the engine loop
     /// and answers with [`Event::Tuned`]; one scan at a time.
     Tune { timesteps: Vec<f64>, cutoffs: Vec<f64>, duration: f64 },
+    /// Stop the running tuning scan (it ends at its next trial); answered with
+    /// [`Event::TuneCancelled`], or refused if no scan runs.
+    CancelTune,
     /// End the engine thread.
     Shutdown,
 }
@@ -104,6 +107,8 @@ pub enum Event {
     Saved(PathBuf),
     /// A tuning scan finished.
     Tuned(TuningReport),
+    /// The running tuning scan was stopped on request; no results will come.
+    TuneCancelled,
 }
 
 /// What a tuning scan found, all in reduced units of `reference`.

@@ -382,6 +382,15 @@ impl Engine {
                     None => Err("no snapshot older than the alarm is left; reset instead".into()),
                 }
             }
+            Command::CancelTune => {
+                if self.tune.is_some() {
+                    self.cancel_tune();
+                    self.emit(Event::TuneCancelled);
+                    Ok(())
+                } else {
+                    Err("no tuning scan is running".into())
+                }
+            }
             Command::Tune { timesteps, cutoffs, duration } => {
                 let sim = session.simulation();
                 if self.tune.is_some() {

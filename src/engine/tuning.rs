@@ -45,8 +45,9 @@ pub const TUNE_STEPS_APART: u64 = 200;
 /// (common practice: a few per cent).
 pub const FLUCTUATION_LIMIT: f64 = 0.05;
 
-/// Runs constant-energy dynamics from `state` for `duration` τ at each timestep.
-pub fn timestep_scan(spec: &SimulationSpec, state: &SimulationState, timesteps: &[f64], duration: f64) -> Vec<TimestepRow> {
+/// Runs constant-energy dynamics from `state` for `duration` τ at each timestep. Once `stop` is
+/// set (checked every 1/200 of a trial) the rows are cut short and mean nothing.
+pub fn timestep_scan(spec: &SimulationSpec, state: &SimulationState, timesteps: &[f64], duration: f64, stop: &AtomicBool) -> Vec<TimestepRow> {
     timesteps
         .iter()
         .map(|&dt| {
@@ -66,6 +67,9 @@ pub fn timestep_scan(spec: &SimulationSpec, state: &SimulationState, timesteps: 
             let (mut t, mut e, mut k) = (vec![0.0], vec![sim.observe().total], vec![sim.observe().kinetic]);
             let mut taken = 0;
             while taken < steps {
+                if stop.load(Ordering::Relaxed) {
+                    return row;
+                }
                 if sim.run(every).is_err() {
                     row.blew_up = true;
                     return row;
@@ -132,15 +136,17 @@ pub fn cutoff_scan(spec: &SimulationSpec, states: &[SimulationState], cutoffs: &
 
 /// Both scans of one tuning request from `state`: each timestep, then the cutoffs averaged
 /// over `state` and further configurations taken [`TUNE_STEPS_APART`] steps apart on a copy
-/// (the caller's simulation is not touched). `stop` is checked between trials.
+/// (the caller's simulation is not touched). `stop` ends the scan with an error within a
+/// fraction of a trial.
 pub fn full_scan(spec: SimulationSpec, state: SimulationState, timesteps: &[f64], cutoffs: &[f64], duration: f64, stop: &AtomicBool) -> Result<TuningReport, String> {
     let stopped = || if stop.load(Ordering::Relaxed) { Err("the engine stopped".to_string()) } else { Ok(()) };
     let from_step = state.step;
     let mut rows = Vec::with_capacity(timesteps.len());
     for &dt in timesteps {
         stopped()?;
-        rows.extend(timestep_scan(&spec, &state, &[dt], duration));
+        rows.extend(timestep_scan(&spec, &state, &[dt], duration, stop));
     }
+    stopped()?;
     // More configurations for the cutoff averages, from a copy that runs on as the user's would.
     let mut copy = Simulation::from_state(spec.clone(), state.clone()).map_err(|e| e.to_string())?;
     let mut states = vec![state];

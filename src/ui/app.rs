@@ -303,6 +303,10 @@ impl NoblescopeApp {
                     self.status.message = Some((text, false));
                     self.tuning.finished(report);
                 }
+                Event::TuneCancelled => {
+                    self.tuning.cancelled();
+                    self.status.message = Some(("Tuning scan stopped.".into(), false));
+                }
                 Event::Alarm(a) => self.status.alarm = Some(a),
                 Event::Rewound { step, time } => {
                     self.plots.rewind_to(time);
@@ -351,6 +355,7 @@ impl NoblescopeApp {
                 self.status.message = Some(("Tuning scan started on copies of the present state.".into(), false));
                 self.send(c);
             }
+            TuningAction::Cancel => self.send(Command::CancelTune),
             TuningAction::UseTimestep(dt) => {
                 self.form.timestep = super::unit_field::UnitField::from_value(dt);
                 self.form_open = true;

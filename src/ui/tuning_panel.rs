@@ -26,6 +26,8 @@ pub enum TuningAction {
     Start(Command),
     /// Put this timestep into the setup form.
     UseTimestep(Duration),
+    /// Send `Command::CancelTune`.
+    Cancel,
 }
 
 /// Display units of the panel: conversion factors from reduced units and symbols.
@@ -81,6 +83,13 @@ pub struct TuningPanel {
     error: Option<String>,
     /// Set after "Use this timestep".
     used: Option<String>,
+    /// Runs started so far (each Apply and restart, reset or checkpoint load is a new run).
+    runs: u64,
+    /// The run the scan in flight started from, and the run the shown report came from.
+    scan_run: u64,
+    report_run: u64,
+    /// Set when a scan was stopped on request.
+    stopped: bool,
 }
 
 /// Parses a comma- or space-separated list of numbers; errors name the field.
@@ -125,6 +134,10 @@ impl TuningPanel {
             report: None,
             error: None,
             used: None,
+            runs: 0,
+            scan_run: 0,
+            report_run: 0,
+            stopped: false,
         };
         p.fill_defaults(setup);
         p
@@ -165,7 +178,9 @@ impl TuningPanel {
     /// Marks `c` as sent (the panel shows "scanning…") and hands it back as an action.
     pub fn start_requested(&mut self, c: Command) -> TuningAction {
         self.scanning = Some(Instant::now());
+        self.scan_run = self.runs;
         self.error = None;
+        self.stopped = false;
         TuningAction::Start(c)
     }
 
@@ -175,6 +190,18 @@ impl TuningPanel {
         self.error = None;
         self.used = None;
         self.report = Some(report);
+        self.report_run = self.scan_run;
+    }
+
+    /// The engine stopped the scan on request.
+    pub fn cancelled(&mut self) {
+        self.scanning = None;
+        self.stopped = true;
+    }
+
+    /// Whether the shown results were scanned from an earlier run than the present one.
+    pub fn results_are_from_an_earlier_run(&self) -> bool {
+        self.report.is_some() && self.report_run != self.runs
     }
 
     /// The engine refused the scan (or the scan failed).
@@ -183,8 +210,10 @@ impl TuningPanel {
         self.error = Some(reason);
     }
 
-    /// The running setup changed; lists in other units are refilled.
+    /// A new run started on `setup`: earlier results are marked as such, and lists in other
+    /// units are refilled.
     pub fn setup_changed(&mut self, setup: &Setup) {
+        self.runs += 1;
         if setup.units() != self.units {
             if !setup.units().has_real_units() {
                 self.cutoff_unit = LengthUnit::Sigma;
@@ -281,11 +310,17 @@ impl TuningPanel {
                 self.fill_defaults(running);
             }
             if let Some(t0) = self.scanning {
+                if ui.button("Stop scan").on_hover_text("stops the scan at its next trial; no results are kept").clicked() {
+                    action = Some(TuningAction::Cancel);
+                }
                 ui.spinner();
                 ui.label(format!("scanning… {:.0} s", t0.elapsed().as_secs_f64()));
                 ui.ctx().request_repaint_after(std::time::Duration::from_millis(250));
             }
         });
+        if self.stopped && self.scanning.is_none() {
+            ui.weak("The last scan was stopped before it finished.");
+        }
         if let Some(e) = &self.error {
             ui.colored_label(palette::ERROR_TEXT, format!("Scan refused: {e}"));
         }
@@ -297,6 +332,9 @@ impl TuningPanel {
             return action;
         };
         ui.separator();
+        if self.results_are_from_an_earlier_run() {
+            ui.colored_label(palette::CAUTION_TEXT, format!("These results were scanned from step {} of an earlier run, before the last Apply and restart, reset or checkpoint load; scan again for the present one.", report.from_step));
+        }
         let shown = Shown::of(crate::physics::UnitSystem::new(report.reference));
         if let Some(a) = self.show_timesteps(ui, &report, shown) {
             action = Some(a);
@@ -521,5 +559,45 @@ mod tests {
         p.cutoffs = "9".into();
         p.duration = "0".into();
         assert!(p.request(&s).unwrap_err().starts_with("duration: 0 ps is out of range"));
+    }
+
+    fn report_from(step: u64) -> TuningReport {
+        TuningReport {
+            from_step: step,
+            reference: crate::physics::Species::ReducedLJ,
+            potential: crate::physics::PotentialMode::TruncatedShifted,
+            duration: 1.0,
+            configurations: 1,
+            timesteps: Vec::new(),
+            cutoffs: Vec::new(),
+            recommended: None,
+        }
+    }
+
+    #[test]
+    fn results_of_a_scan_from_an_earlier_run_are_marked() {
+        let s = reduced_setup();
+        let mut p = TuningPanel::for_setup(&s);
+        p.setup_changed(&s);
+        let c = p.request(&s).unwrap();
+        let _ = p.start_requested(c.clone());
+        p.finished(report_from(10));
+        assert!(!p.results_are_from_an_earlier_run());
+        // Apply and restart: the shown results belong to the run before.
+        p.setup_changed(&s);
+        assert!(p.results_are_from_an_earlier_run());
+        // A scan started before a restart and answered after it is marked too.
+        let _ = p.start_requested(c.clone());
+        p.setup_changed(&s);
+        p.finished(report_from(20));
+        assert!(p.results_are_from_an_earlier_run());
+        // A fresh scan of the present run is not.
+        let _ = p.start_requested(c);
+        p.finished(report_from(0));
+        assert!(!p.results_are_from_an_earlier_run());
+        // Stopping a scan leaves the panel idle.
+        let _ = p.start_requested(p.request(&s).unwrap());
+        p.cancelled();
+        assert!(!p.scanning());
     }
 }
