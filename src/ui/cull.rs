@@ -128,53 +128,55 @@ impl Coverage {
         if self.all_full(r0, r1, c0, c1) {
             return false;
         }
-        let mut open = false;
-        for row in r0..=r1 {
-            let dy = row as f32 + 0.5 - p.y;
-            let s = outer * outer - dy * dy;
-            if s < 0.0 {
-                continue;
-            }
-            if let Some((c0, c1)) = span(p.x, s.sqrt(), w) {
-                let line = &self.bits[row * words..(row + 1) * words];
-                if for_words(c0, c1, |k, m| line[k] & m != m) {
-                    open = true;
-                    break;
-                }
-            }
-        }
+        let bits = &mut self.bits;
+        let open = disc_rows(p, outer, w, h, |row, c0, c1| {
+            let line = &bits[row * words..(row + 1) * words];
+            for_words(c0, c1, |k, m| line[k] & m != m)
+        });
         if !open {
             return false;
         }
         if inner > 0.0 {
+            let (mut k0, mut k1) = (usize::MAX, 0);
+            disc_rows(p, inner, w, h, |row, c0, c1| {
+                k0 = k0.min(c0 / 64);
+                k1 = k1.max(c1 / 64);
+                let line = &mut bits[row * words..(row + 1) * words];
+                for_words(c0, c1, |k, m| {
+                    line[k] |= m;
+                    false
+                })
+            });
             if let Some((r0, r1)) = span(p.y, inner, h) {
-                let (mut k0, mut k1) = (usize::MAX, 0);
-                for row in r0..=r1 {
-                    let dy = row as f32 + 0.5 - p.y;
-                    let s = inner * inner - dy * dy;
-                    if s < 0.0 {
-                        continue;
-                    }
-                    if let Some((c0, c1)) = span(p.x, s.sqrt(), w) {
-                        k0 = k0.min(c0 / 64);
-                        k1 = k1.max(c1 / 64);
-                        let line = &mut self.bits[row * words..(row + 1) * words];
-                        for_words(c0, c1, |k, m| {
-                            line[k] |= m;
-                            false
-                        });
-                    }
-                }
                 for t in r0 / TILE_ROWS..=r1 / TILE_ROWS {
                     for k in k0..=k1.min(words - 1) {
                         let rows = t * TILE_ROWS..((t + 1) * TILE_ROWS).min(h);
-                        self.full[t * words + k] = rows.into_iter().all(|row| self.bits[row * words + k] == u64::MAX);
+                        self.full[t * words + k] = rows.into_iter().all(|row| bits[row * words + k] == u64::MAX);
                     }
                 }
             }
         }
         true
     }
+}
+
+/// Calls `f(row, c0, c1)` for each row of a `w`×`h` view whose pixel centres `c0..=c1` lie
+/// within `radius` of the centre of `p`, until `f` returns true; returns whether it did.
+fn disc_rows(p: &Projected, radius: f32, w: usize, h: usize, mut f: impl FnMut(usize, usize, usize) -> bool) -> bool {
+    let Some((r0, r1)) = span(p.y, radius, h) else { return false };
+    for row in r0..=r1 {
+        let dy = row as f32 + 0.5 - p.y;
+        let s = radius * radius - dy * dy;
+        if s < 0.0 {
+            continue;
+        }
+        if let Some((c0, c1)) = span(p.x, s.sqrt(), w) {
+            if f(row, c0, c1) {
+                return true;
+            }
+        }
+    }
+    false
 }
 
 /// Smallest integer ≥ `v` (for |v| < 2³¹; without SSE4.1 `f32::ceil` is a library call).
