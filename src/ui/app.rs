@@ -59,6 +59,18 @@ enum Leave {
     OpenBundled,
 }
 
+/// What the open file dialog is for.
+#[derive(Clone, Debug, PartialEq)]
+enum Ask {
+    OpenSetup,
+    /// Save the form's setup, then go on with `then` (the answer to a leave question).
+    SaveSetup { then: Option<Leave> },
+    SaveCheckpoint,
+    LoadCheckpoint,
+    ExportCsv,
+    SavePicture,
+}
+
 /// The eframe application.
 pub struct NoblescopeApp {
     engine: Option<EngineHandle>,
@@ -88,6 +100,8 @@ pub struct NoblescopeApp {
     watch_done: bool,
     shot_tx: Sender<Arc<egui::ColorImage>>,
     shot_rx: Receiver<Arc<egui::ColorImage>>,
+    /// The native file dialog, if one is open (it does not block the window).
+    dialog: files::Dialog<Ask>,
     shot_target: Option<PathBuf>,
     frames_drawn: u64,
 }
@@ -167,6 +181,7 @@ impl NoblescopeApp {
             watch_done: false,
             shot_tx,
             shot_rx,
+            dialog: files::Dialog::default(),
             shot_target: None,
             frames_drawn: 0,
         }
@@ -389,11 +404,7 @@ impl NoblescopeApp {
                 self.allow_close = true;
                 ctx.send_viewport_cmd(egui::ViewportCommand::Close);
             }
-            Leave::OpenDialog => {
-                if let Some(p) = files::pick_setup_to_open() {
-                    self.open_path(p);
-                }
-            }
+            Leave::OpenDialog => self.ask_file(ctx, Ask::OpenSetup, files::pick_setup_to_open),
             Leave::OpenPath(p) => self.open_path(p),
             Leave::OpenBundled => self.open_setup(bundled_setup(), None, BUNDLED_NAME),
         }
@@ -426,35 +437,76 @@ impl NoblescopeApp {
         }
     }
 
-    fn save_setup(&mut self, ask: bool) -> bool {
-        let (draft, errors) = self.form.draft();
+    /// Opens a file dialog for `ask`; its answer is handled in `answer_dialog`.
+    fn ask_file(&mut self, ctx: &egui::Context, ask: Ask, pick: impl FnOnce() -> Option<PathBuf> + Send + 'static) {
+        let c = ctx.clone();
+        if !self.dialog.open(ask, move || c.request_repaint(), pick) {
+            self.status.message = Some(("A file dialog is open already; finish it first.".into(), true));
+        }
+    }
+
+    /// Acts on the file dialog's answer once it has closed.
+    fn answer_dialog(&mut self, ctx: &egui::Context) {
+        let Some((ask, path)) = self.dialog.poll() else { return };
+        let Some(path) = path else {
+            // Cancelled: a leave question waiting on the save is asked again.
+            if let Ask::SaveSetup { then: Some(leave) } = ask {
+                self.leave = Some(leave);
+            }
+            return;
+        };
+        match ask {
+            Ask::OpenSetup => self.open_path(path),
+            Ask::SaveSetup { then } => self.write_setup_then(ctx, path, then),
+            Ask::SaveCheckpoint => self.send(Command::SaveCheckpoint(path)),
+            Ask::LoadCheckpoint => self.send(Command::LoadCheckpoint(path)),
+            Ask::ExportCsv => self.export_csv(&path),
+            Ask::SavePicture => self.request_screenshot(ctx, path),
+        }
+    }
+
+    /// Saves the form's setup to its file, or asks for one (always with `ask`); then goes on
+    /// with `then`. If the setup cannot be saved, the leave question is asked again.
+    fn save_setup(&mut self, ctx: &egui::Context, ask: bool, then: Option<Leave>) {
+        let (_, errors) = self.form.draft();
         if !errors.is_empty() {
             self.status.message = Some(("The form has fields that are not numbers; fix them before saving.".into(), true));
-            return false;
+            self.leave = then;
+            return;
         }
-        let path = match (&self.setup_path, ask) {
-            (Some(p), false) => Some(p.clone()),
-            _ => files::pick_setup_to_save(self.setup_path.as_deref()),
-        };
-        let Some(path) = path else { return false };
+        match (&self.setup_path, ask) {
+            (Some(p), false) => {
+                let p = p.clone();
+                self.write_setup_then(ctx, p, then);
+            }
+            _ => {
+                let current = self.setup_path.clone();
+                self.ask_file(ctx, Ask::SaveSetup { then }, move || files::pick_setup_to_save(current.as_deref()));
+            }
+        }
+    }
+
+    fn write_setup_then(&mut self, ctx: &egui::Context, path: PathBuf, then: Option<Leave>) {
+        let (draft, _) = self.form.draft();
         match files::write_setup(&path, &draft) {
             Ok(()) => {
                 self.status.message = Some((format!("Setup saved to {}", path.display()), false));
                 self.saved = Some(draft);
                 self.setup_path = Some(path);
-                true
+                if let Some(leave) = then {
+                    self.do_leave(ctx, leave);
+                }
             }
             Err(e) => {
                 self.status.message = Some((format!("Could not save the setup: {e}"), true));
-                false
+                self.leave = then;
             }
         }
     }
 
-    fn export_csv(&mut self) {
-        let Some(path) = files::pick_csv_to_save() else { return };
+    fn export_csv(&mut self, path: &std::path::Path) {
         let (samples, stride) = self.plots.export_log();
-        match files::write_csv(&path, samples, self.plots.units()) {
+        match files::write_csv(path, samples, self.plots.units()) {
             Ok(n) => {
                 let note = if stride > 1 { format!(" (long run: every {stride}th sample kept)") } else { String::new() };
                 self.status.message = Some((format!("Exported {n} samples to {}{note}", path.display()), false));
@@ -516,12 +568,10 @@ impl NoblescopeApp {
             self.request_leave(ctx, Leave::OpenDialog);
         }
         if save {
-            self.save_setup(false);
+            self.save_setup(ctx, false, None);
         }
         if shot {
-            if let Some(p) = files::pick_png_to_save() {
-                self.request_screenshot(ctx, p);
-            }
+            self.ask_file(ctx, Ask::SavePicture, files::pick_png_to_save);
         }
         if v1 {
             self.view.settings.mode = ViewMode::Box3d;
@@ -548,35 +598,29 @@ impl NoblescopeApp {
                 }
                 if ui.button("Save setup  (Ctrl+S)").clicked() {
                     ui.close();
-                    self.save_setup(false);
+                    self.save_setup(&ctx, false, None);
                 }
                 if ui.button("Save setup as…").clicked() {
                     ui.close();
-                    self.save_setup(true);
+                    self.save_setup(&ctx, true, None);
                 }
                 ui.separator();
                 if ui.button("Save checkpoint…").clicked() {
                     ui.close();
-                    if let Some(p) = files::pick_checkpoint_to_save() {
-                        self.send(Command::SaveCheckpoint(p));
-                    }
+                    self.ask_file(&ctx, Ask::SaveCheckpoint, files::pick_checkpoint_to_save);
                 }
                 if ui.button("Load checkpoint…").clicked() {
                     ui.close();
-                    if let Some(p) = files::pick_checkpoint_to_open() {
-                        self.send(Command::LoadCheckpoint(p));
-                    }
+                    self.ask_file(&ctx, Ask::LoadCheckpoint, files::pick_checkpoint_to_open);
                 }
                 ui.separator();
                 if ui.button("Export energy log (CSV)…").clicked() {
                     ui.close();
-                    self.export_csv();
+                    self.ask_file(&ctx, Ask::ExportCsv, files::pick_csv_to_save);
                 }
                 if ui.button("Save picture of the window (PNG)…  (Ctrl+P)").clicked() {
                     ui.close();
-                    if let Some(p) = files::pick_png_to_save() {
-                        self.request_screenshot(&ctx, p);
-                    }
+                    self.ask_file(&ctx, Ask::SavePicture, files::pick_png_to_save);
                 }
                 ui.separator();
                 if ui.button("Quit").clicked() {
@@ -634,10 +678,8 @@ impl NoblescopeApp {
         match answer {
             Some(0) => self.leave = None,
             Some(1) => {
-                if self.save_setup(false) {
-                    self.leave = None;
-                    self.do_leave(ctx, leave);
-                }
+                self.leave = None;
+                self.save_setup(ctx, false, Some(leave));
             }
             Some(2) => {
                 self.leave = None;
@@ -735,6 +777,7 @@ impl NoblescopeApp {
                 });
             }
         }
+        self.answer_dialog(&ctx);
         self.keys(&ctx);
         self.watch_step(&ctx);
 

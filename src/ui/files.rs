@@ -1,9 +1,65 @@
 //! Files in and out of the window: setup files, checkpoints, the energy CSV and PNG pictures.
-//! Dialogs are native (rfd); the writers are plain functions so they can be tested.
+//! Dialogs are native (rfd) and, on Linux, run on a thread of their own ([`Dialog`]) so the
+//! window keeps drawing while one is open; the writers are plain functions so they can be tested.
 
 use crate::io::setup::{Setup, SetupError};
 use crate::physics::{Observables, UnitSystem};
 use std::path::{Path, PathBuf};
+use std::sync::mpsc::{self, Receiver, TryRecvError};
+
+/// At most one file dialog at a time, tagged with what it was opened for.
+#[derive(Debug)]
+pub struct Dialog<T> {
+    pending: Option<(T, Receiver<Option<PathBuf>>)>,
+}
+
+impl<T> Default for Dialog<T> {
+    fn default() -> Self {
+        Dialog { pending: None }
+    }
+}
+
+impl<T> Dialog<T> {
+    /// Whether a dialog is open (its answer has not been taken yet).
+    pub fn is_open(&self) -> bool {
+        self.pending.is_some()
+    }
+
+    /// Runs `pick` for `purpose` and calls `wake` once the answer is in; returns false, doing
+    /// nothing, if a dialog is open already. On Linux `pick` runs on its own thread (the portal
+    /// and zenity dialogs rfd uses there may run on any thread); elsewhere native dialogs
+    /// belong to the main thread, so it runs at once.
+    pub fn open(&mut self, purpose: T, wake: impl FnOnce() + Send + 'static, pick: impl FnOnce() -> Option<PathBuf> + Send + 'static) -> bool {
+        if self.pending.is_some() {
+            return false;
+        }
+        let (tx, rx) = mpsc::channel();
+        let job = move || {
+            let _ = tx.send(pick());
+            wake();
+        };
+        if cfg!(target_os = "linux") {
+            // If the thread cannot start, the sender is dropped and `poll` reports no file.
+            let _ = std::thread::Builder::new().name("noblescope-file-dialog".into()).spawn(job);
+        } else {
+            job();
+        }
+        self.pending = Some((purpose, rx));
+        true
+    }
+
+    /// The purpose and the chosen path (`None`: cancelled, or the dialog failed) once the
+    /// dialog has closed.
+    pub fn poll(&mut self) -> Option<(T, Option<PathBuf>)> {
+        let (_, rx) = self.pending.as_ref()?;
+        let answer = match rx.try_recv() {
+            Ok(p) => p,
+            Err(TryRecvError::Empty) => return None,
+            Err(TryRecvError::Disconnected) => None,
+        };
+        self.pending.take().map(|(purpose, _)| (purpose, answer))
+    }
+}
 
 /// Asks for a setup file to open.
 pub fn pick_setup_to_open() -> Option<PathBuf> {
@@ -94,5 +150,42 @@ mod tests {
         assert_eq!((info.width, info.height), (3, 2));
         assert_eq!(&buf[16..19], &[200, 100, 50]);
         assert_eq!(&buf[0..3], &[10, 20, 30]);
+    }
+
+    fn wait<T>(d: &mut Dialog<T>) -> (T, Option<PathBuf>) {
+        let until = std::time::Instant::now() + std::time::Duration::from_secs(10);
+        loop {
+            if let Some(answer) = d.poll() {
+                return answer;
+            }
+            assert!(std::time::Instant::now() < until, "the dialog never answered");
+            std::thread::sleep(std::time::Duration::from_millis(5));
+        }
+    }
+
+    #[test]
+    fn one_dialog_at_a_time_and_its_answer_keeps_its_purpose() {
+        let mut d = Dialog::default();
+        let (gate_tx, gate_rx) = mpsc::channel::<()>();
+        let (woke_tx, woke_rx) = mpsc::channel();
+        assert!(d.open("open", move || woke_tx.send(()).unwrap(), move || {
+            let _ = gate_rx.recv();
+            Some(PathBuf::from("a.ron"))
+        }));
+        assert!(d.is_open());
+        assert!(!d.open("save", || {}, || Some(PathBuf::from("b.ron"))), "a second dialog opened");
+        let _ = gate_tx.send(());
+        assert_eq!(wait(&mut d), ("open", Some(PathBuf::from("a.ron"))));
+        woke_rx.recv_timeout(std::time::Duration::from_secs(10)).expect("the window was woken");
+        assert!(!d.is_open());
+        assert!(d.poll().is_none());
+        // Cancelled, and a dialog that failed outright: no file, purpose kept, none left open.
+        assert!(d.open("save", || {}, || None));
+        assert_eq!(wait(&mut d), ("save", None));
+        if cfg!(target_os = "linux") {
+            assert!(d.open("load", || {}, || panic!("the dialog crashed")));
+            assert_eq!(wait(&mut d), ("load", None));
+        }
+        assert!(!d.is_open());
     }
 }
