@@ -138,11 +138,10 @@ fn set_threads(threads: Option<usize>) -> Result<usize, RunError> {
 /// 2-core build machine the simulation ran about 14 % faster beside the window with one force
 /// thread than with two, and frames were steadier).
 fn build_force_pool(threads: Option<usize>, yield_to_window: bool) -> Result<usize, RunError> {
-    if let Some(n) = threads {
-        if n == 0 || n > 1024 {
+    if let Some(n) = threads
+        && (n == 0 || n > 1024) {
             return Err(RunError::BadInput(format!("--threads: {n} is out of range; allowed: 1 to 1024")));
         }
-    }
     if threads.is_some() || yield_to_window {
         let mut b = rayon::ThreadPoolBuilder::new().thread_name(|i| format!("noblescope-force-{i}"));
         let cores = std::thread::available_parallelism().map_or(1, |n| n.get());

@@ -354,7 +354,7 @@ fn header_scalars_round_trip_bit_for_bit() {
     for _ in 0..3000 {
         let mut c = base.clone();
         // Mantissa random, exponent within ±2^20: the range heat and energies live in.
-        let mut value = || f64::from_bits((next() >> 12) | ((1023 + (next() % 41) as u64 - 20) << 52)) * if next() & 1 == 0 { 1.0 } else { -1.0 };
+        let mut value = || f64::from_bits((next() >> 12) | ((1023 + (next() % 41) - 20) << 52)) * if next() & 1 == 0 { 1.0 } else { -1.0 };
         c.state.heat = value();
         c.state.drift_origin = value();
         c.state.time = value().abs();

@@ -185,7 +185,7 @@ fn check_forces(c: &Config, species: usize) -> Result<(), TestCaseError> {
 /// force loop race-free, per the module doc of `physics::neighbours`).
 fn check_slabs(list: &NeighbourList, n: usize) -> Result<(), TestCaseError> {
     let slabs = list.slabs();
-    prop_assert!(slabs == 1 || (slabs >= 3 && slabs % 3 == 0), "{} slabs", slabs);
+    prop_assert!(slabs == 1 || (slabs >= 3 && slabs.is_multiple_of(3)), "{} slabs", slabs);
     let mut slab_of = vec![usize::MAX; n];
     for s in 0..slabs {
         for &i in list.slab(s) {

@@ -122,11 +122,10 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
                 let sim = session.simulation();
                 trajectory::write_frame(t, sim.system(), &units, step, sim.time()).map_err(|e| io_err("trajectory.xyz", e))?;
             }
-        if let (Some(g), Some(k)) = (rdf.as_mut(), setup.rdf_every) {
-            if step.is_multiple_of(k) && step >= setup.equilibration_steps {
+        if let (Some(g), Some(k)) = (rdf.as_mut(), setup.rdf_every)
+            && step.is_multiple_of(k) && step >= setup.equilibration_steps {
                 g.add(session.simulation());
             }
-        }
         if step.is_multiple_of(64) {
             bar.set_position(step - start_step);
         }

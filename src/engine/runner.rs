@@ -24,8 +24,6 @@ const SNAPSHOT_EVERY: u64 = 500;
 const BATCH: Duration = Duration::from_millis(15);
 /// How often a status event goes out.
 const STATUS_EVERY: Duration = Duration::from_millis(250);
-/// Configurations a cutoff scan averages over: the present state and, from a copy, states this
-/// many steps apart.
 
 /// The window's side of the engine: send commands, read events, take frames.
 pub struct EngineHandle {

@@ -283,11 +283,10 @@ impl NoblescopeApp {
             match ev {
                 Event::Sample(o) => self.plots.push(&o),
                 Event::Status(s) => {
-                    if let Some((_, rec, _)) = &mut self.watch {
-                        if s.running {
+                    if let Some((_, rec, _)) = &mut self.watch
+                        && s.running {
                             rec.step(now, s.step);
                         }
-                    }
                     self.status.status = s;
                 }
                 Event::Started { setup, atoms } => {

@@ -102,7 +102,7 @@ impl Coverage {
         self.bits.clear();
         self.bits.resize(self.words * h, 0);
         // Bits past the right edge count as covered, so edge tiles can fill up.
-        if w % 64 != 0 {
+        if !w.is_multiple_of(64) {
             let pad = u64::MAX << (w % 64);
             for row in 0..h {
                 self.bits[row * self.words + self.words - 1] = pad;
@@ -170,11 +170,10 @@ fn disc_rows(p: &Projected, radius: f32, w: usize, h: usize, mut f: impl FnMut(u
         if s < 0.0 {
             continue;
         }
-        if let Some((c0, c1)) = span(p.x, s.sqrt(), w) {
-            if f(row, c0, c1) {
+        if let Some((c0, c1)) = span(p.x, s.sqrt(), w)
+            && f(row, c0, c1) {
                 return true;
             }
-        }
     }
     false
 }

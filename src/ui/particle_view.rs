@@ -302,11 +302,10 @@ impl ParticleView {
                 let corner = |i: u8| Vec3::new((i & 1) as f32, ((i >> 1) & 1) as f32, ((i >> 2) & 1) as f32) * l;
                 for a in 0u8..8 {
                     for bit in [1u8, 2, 4] {
-                        if a & bit == 0 {
-                            if let (Some(p), Some(q)) = (to_screen(corner(a)), to_screen(corner(a | bit))) {
+                        if a & bit == 0
+                            && let (Some(p), Some(q)) = (to_screen(corner(a)), to_screen(corner(a | bit))) {
                                 painter.line_segment([p, q], stroke);
                             }
-                        }
                     }
                 }
             }

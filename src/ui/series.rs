@@ -162,7 +162,7 @@ impl<T: Copy> ThinnedLog<T> {
 
     /// Offers a sample; it is kept if it falls on the present stride.
     pub fn push(&mut self, item: T) {
-        if self.offered % self.stride == 0 {
+        if self.offered.is_multiple_of(self.stride) {
             if self.items.len() >= self.capacity {
                 let mut k = 0;
                 for i in (0..self.items.len()).step_by(2) {
@@ -172,7 +172,7 @@ impl<T: Copy> ThinnedLog<T> {
                 self.items.truncate(k);
                 self.stride *= 2;
             }
-            if self.offered % self.stride == 0 {
+            if self.offered.is_multiple_of(self.stride) {
                 self.items.push(item);
             }
         }

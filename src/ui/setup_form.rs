@@ -357,21 +357,19 @@ impl SetupForm {
                 .add_enabled(ok && unapplied, egui::Button::new("Apply and restart"))
                 .on_hover_text("start a fresh simulation from this setup")
                 .on_disabled_hover_text(if ok { "nothing to apply" } else { "fix the marked fields first" });
-            if apply.clicked() {
-                if let Ok(s) = &built {
+            if apply.clicked()
+                && let Ok(s) = &built {
                     action = Some(FormAction::Apply(Box::new(s.clone())));
                 }
-            }
             let live = built.as_ref().map(|s| Self::live_changeable(running, s)).unwrap_or(false);
             let r = ui
                 .add_enabled(live, egui::Button::new("Change live"))
                 .on_hover_text("send timestep, interaction and bath changes to the running simulation")
                 .on_disabled_hover_text("only timestep, cutoff, skin, potential, tail correction, ensemble and temperature change live");
-            if r.clicked() {
-                if let Ok(s) = &built {
+            if r.clicked()
+                && let Ok(s) = &built {
                     action = Some(FormAction::ApplyLive(Box::new(s.clone())));
                 }
-            }
             if ui.add_enabled(unapplied, egui::Button::new("Revert")).on_hover_text("show the running setup again").clicked() {
                 action = Some(FormAction::Revert);
             }

@@ -262,11 +262,10 @@ impl<Q: Quantity> UnitField<Q> {
 
     /// The typed number, or a message naming the field and the problem.
     pub fn number(&self, field: &str) -> Result<f64, String> {
-        if let Some((v, shown)) = &self.exact {
-            if *shown == self.text {
+        if let Some((v, shown)) = &self.exact
+            && *shown == self.text {
                 return Ok(*v);
             }
-        }
         let t = self.text.trim();
         match t.parse::<f64>() {
             Ok(x) if x.is_finite() => Ok(x),
@@ -285,15 +284,13 @@ impl<Q: Quantity> UnitField<Q> {
         if unit == self.unit {
             return;
         }
-        if let Ok(x) = self.number("") {
-            if let (Ok(r), Ok(per)) = (Q::reduce(setup, self.unit.make(x)), Q::reduce(setup, unit.make(1.0))) {
-                if per != 0.0 {
+        if let Ok(x) = self.number("")
+            && let (Ok(r), Ok(per)) = (Q::reduce(setup, self.unit.make(x)), Q::reduce(setup, unit.make(1.0)))
+                && per != 0.0 {
                     let v = r / per;
                     self.text = format_number(v);
                     self.exact = Some((v, self.text.clone()));
                 }
-            }
-        }
         self.unit = unit;
     }
 
@@ -332,11 +329,10 @@ impl<Q: Quantity> UnitField<Q> {
                 self.set_unit(setup, picked);
                 changed = true;
             }
-            if real {
-                if let Some(eq) = self.equivalent(setup) {
+            if real
+                && let Some(eq) = self.equivalent(setup) {
                     ui.weak(eq);
                 }
-            }
         });
         changed
     }

@@ -87,11 +87,10 @@ impl WatchRecorder {
 
     /// Call once per displayed frame.
     pub fn frame(&mut self, now: Instant) {
-        if let Some(prev) = self.last {
-            if self.frames_seen > WARMUP_FRAMES {
+        if let Some(prev) = self.last
+            && self.frames_seen > WARMUP_FRAMES {
                 self.intervals.push((now - prev).as_secs_f64() * 1e3);
             }
-        }
         self.last = Some(now);
         self.frames_seen += 1;
     }
