@@ -152,7 +152,7 @@ fn block_average_matches_the_analytic_error_of_ar1() {
     // blocks: relative error ≈ 1/√(2·(blocks−1)) ≈ 0.18). The documented reading (largest error
     // over levels with ≥ 16 blocks) is conservative, so the accepted band leans upward. A naive
     // σ/√N for φ = 0.9 would be 0.23 of the analytic value and fail.
-    let mut rng = Normal(0x5EED_0F_B10C);
+    let mut rng = Normal(0x005E_ED0F_B10C);
     for phi in [0.0f64, 0.5, 0.9] {
         let n = 1 << 14;
         let analytic = ((1.0 + phi) / (1.0 - phi)).sqrt() / (n as f64).sqrt();

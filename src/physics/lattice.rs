@@ -139,8 +139,8 @@ mod tests {
         for i in 0..pos.len() {
             for j in 0..i {
                 let mut r2 = 0.0;
-                for k in 0..3 {
-                    let mut d = pos[i][k] - pos[j][k];
+                for (a, b) in pos[i].iter().zip(&pos[j]) {
+                    let mut d = a - b;
                     d -= 9.0 * (d / 9.0).round();
                     r2 += d * d;
                 }
