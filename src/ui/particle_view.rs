@@ -352,11 +352,16 @@ impl ParticleView {
             }
             ui.separator();
             ui.weak(match self.settings.mode {
-                ViewMode::Box3d => format!("{} atoms, box edge {:.2} σ ({} drawn, the rest are hidden behind them)", frame.len(), frame.box_length, self.shown),
-                ViewMode::Slab => format!("{} of {} atoms in the slab ({} drawn, the rest are hidden behind them)", self.placed, frame.len(), self.shown),
+                ViewMode::Box3d => format!("{} atoms, box edge {:.2} σ ({})", frame.len(), frame.box_length, drawn(self.shown, frame.len())),
+                ViewMode::Slab => format!("{} of {} atoms in the slab ({})", self.placed, frame.len(), drawn(self.shown, self.placed)),
             });
         });
     }
+}
+
+/// How many of `of` atoms were drawn, for the legend.
+fn drawn(shown: usize, of: usize) -> String {
+    if shown >= of { "all drawn".into() } else { format!("{shown} drawn; the rest are hidden behind them or out of view") }
 }
 
 fn swatch(ui: &mut egui::Ui, c: egui::Color32) {
