@@ -53,14 +53,17 @@ impl Culler {
     /// Calls `keep(i)` for every atom `i < n` that shows at least one pixel of a
     /// `width`×`height` pixel view, nearest first (smallest `depth` first). `project(i)` gives
     /// the atom on screen, or `None` if it is not drawn (behind the camera, outside a slab).
-    pub fn run(&mut self, n: usize, width: usize, height: usize, project: impl Fn(usize) -> Option<Projected>, mut keep: impl FnMut(usize)) {
+    /// Returns how many atoms `project` placed (on screen or not).
+    pub fn run(&mut self, n: usize, width: usize, height: usize, project: impl Fn(usize) -> Option<Projected>, mut keep: impl FnMut(usize)) -> usize {
         let (w, h) = (width.max(1), height.max(1));
         self.cover.reset(w, h);
         self.order.clear();
         self.discs.clear();
         let (wf, hf) = (w as f32, h as f32);
+        let mut placed = 0;
         for i in 0..n {
             let Some(p) = project(i) else { continue };
+            placed += 1;
             if p.depth.is_finite() && p.r > 0.0 && p.x + p.r >= 0.0 && p.x - p.r <= wf && p.y + p.r >= 0.0 && p.y - p.r <= hf {
                 self.order.push((order_key(p.depth) as u64) << 32 | self.discs.len() as u64);
                 self.discs.push((p, i as u32));
@@ -73,6 +76,7 @@ impl Culler {
                 keep(atom as usize);
             }
         }
+        placed
     }
 }
 
@@ -223,7 +227,8 @@ mod tests {
     fn kept(atoms: &[Option<Projected>]) -> Vec<usize> {
         let mut c = Culler::new();
         let mut out = Vec::new();
-        c.run(atoms.len(), 200, 200, |i| atoms[i], |i| out.push(i));
+        let placed = c.run(atoms.len(), 200, 200, |i| atoms[i], |i| out.push(i));
+        assert_eq!(placed, atoms.iter().flatten().count());
         out
     }
 

@@ -71,7 +71,7 @@ pub struct ParticleView {
     culler: Culler,
     /// Atoms the culler kept in the last fill, nearest first.
     kept: Vec<u32>,
-    /// Atoms the last fill placed in the view (all in 3D, those in the slab in 2D).
+    /// Atoms the last fill placed in the view (in front of the camera in 3D, in the slab in 2D).
     placed: usize,
     /// Upper end of the colour scale of the last fill (σ/τ or ε).
     scale_max: f32,
@@ -235,13 +235,12 @@ impl ParticleView {
         let radius = |i: usize| frame.sigmas.get(frame.types[i] as usize).copied().unwrap_or(1.0) * size;
         let mode = self.settings.mode;
         let slab = self.settings.slab;
-        let (_, right, up) = slab.axis.indices();
         // Where atom i is drawn: its position (3D) or its slab coordinates (2D), if at all.
         let place = |i: usize| -> Option<[f32; 3]> {
             let p = frame.positions[i];
             match mode {
                 ViewMode::Box3d => Some(p),
-                ViewMode::Slab => slab.depth(p, l).map(|d| [p[right], p[up], d]),
+                ViewMode::Slab => slab.place(p, l),
             }
         };
         let near = 0.05 * l;
@@ -264,11 +263,7 @@ impl ParticleView {
         };
         let kept = &mut self.kept;
         kept.clear();
-        self.culler.run(frame.len(), px[0] as usize, px[1] as usize, project, |i| kept.push(i as u32));
-        self.placed = match mode {
-            ViewMode::Box3d => frame.len(),
-            ViewMode::Slab => (0..frame.len()).filter(|&i| place(i).is_some()).count(),
-        };
+        self.placed = self.culler.run(frame.len(), px[0] as usize, px[1] as usize, project, |i| kept.push(i as u32));
         // Farthest first, so nearer sprites paint over farther ones.
         let v = &mut scene.vertices;
         v.clear();

@@ -1,7 +1,5 @@
 //! The flat view: a slab of the box, cut across one axis, projected onto the other two.
 
-use crate::engine::Frame;
-
 /// The axis a slab is cut across.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum Axis {
@@ -57,15 +55,11 @@ impl Slab {
         (d.abs() <= 0.5 * self.thickness).then_some(d)
     }
 
-    /// Calls `emit(index, right, up, depth)` for each atom of `frame` inside the slab.
-    pub fn select(&self, frame: &Frame, mut emit: impl FnMut(usize, f32, f32, f32)) {
+    /// Where position `p` is drawn in the flat view: its coordinates along the two drawn axes
+    /// (right, up) and its depth from the slab centre, if it lies in the slab.
+    pub fn place(&self, p: [f32; 3], l: f32) -> Option<[f32; 3]> {
         let (_, r, u) = self.axis.indices();
-        let l = frame.box_length;
-        for (i, p) in frame.positions.iter().enumerate() {
-            if let Some(d) = self.depth(*p, l) {
-                emit(i, p[r], p[u], d);
-            }
-        }
+        self.depth(p, l).map(|d| [p[r], p[u], d])
     }
 
     /// Draws the slab controls; `box_length` in σ for the thickness range.
@@ -103,10 +97,10 @@ mod tests {
 
     #[test]
     fn projects_onto_the_other_two_axes() {
-        let frame = Frame { box_length: 10.0, positions: vec![[1.0, 2.0, 5.0], [1.0, 2.0, 9.0]], ..Default::default() };
         let slab = Slab { axis: Axis::Z, centre: 0.5, thickness: 1.0 };
-        let mut got = Vec::new();
-        slab.select(&frame, |i, r, u, _| got.push((i, r, u)));
-        assert_eq!(got, vec![(0, 1.0, 2.0)]);
+        assert_eq!(slab.place([1.0, 2.0, 5.0], 10.0), Some([1.0, 2.0, 0.0]));
+        assert_eq!(slab.place([1.0, 2.0, 9.0], 10.0), None);
+        let slab = Slab { axis: Axis::X, centre: 0.5, thickness: 1.0 };
+        assert_eq!(slab.place([5.25, 2.0, 3.0], 10.0), Some([2.0, 3.0, 0.25]));
     }
 }
