@@ -35,7 +35,7 @@ pub enum Command {
     /// on copies: the user's simulation is not advanced. The scan runs beside the engine loop
     /// and answers with [`Event::Tuned`]; one scan at a time.
     Tune { timesteps: Vec<f64>, cutoffs: Vec<f64>, duration: f64 },
-    /// Stop the running tuning scan (it ends at its next trial); answered with
+    /// Stop the running tuning scan (within 1/200 of a trial); answered with
     /// [`Event::TuneCancelled`], or refused if no scan runs.
     CancelTune,
     /// End the engine thread.

@@ -105,7 +105,7 @@ struct Engine {
 /// A tuning scan on its own thread, working on copies of the state.
 struct TuneJob {
     result: Receiver<Result<TuningReport, String>>,
-    /// Set to make the worker stop at its next trial (when the engine ends).
+    /// Set to make the worker stop within 1/200 of a trial (on request, or when the engine ends).
     cancel: Arc<AtomicBool>,
     thread: JoinHandle<()>,
 }
@@ -165,7 +165,7 @@ impl Engine {
         }
     }
 
-    /// Stops a running scan at its next trial without waiting for it.
+    /// Stops a running scan (within 1/200 of a trial) without waiting for it.
     fn cancel_tune(&mut self) {
         if let Some(job) = self.tune.take() {
             job.cancel.store(true, Ordering::Relaxed);

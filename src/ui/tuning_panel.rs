@@ -310,7 +310,7 @@ impl TuningPanel {
                 self.fill_defaults(running);
             }
             if let Some(t0) = self.scanning {
-                if ui.button("Stop scan").on_hover_text("stops the scan at its next trial; no results are kept").clicked() {
+                if ui.button("Stop scan").on_hover_text("stops the scan within a fraction of a trial; no results are kept").clicked() {
                     action = Some(TuningAction::Cancel);
                 }
                 ui.spinner();
