@@ -42,7 +42,11 @@ fn energy_and_density_units() {
 }
 
 fn argon_setup() -> Setup {
-    Setup::load(std::path::Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/assets/argon-cold-trap.ron"))).expect("bundled setup parses")
+    Setup::load(std::path::Path::new(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/assets/argon-cold-trap.ron"
+    )))
+    .expect("bundled setup parses")
 }
 
 #[test]
@@ -51,7 +55,9 @@ fn setup_fields_reduce_consistently() {
     let u = s.units();
     let rho = s.reduced_density(Density::GramsPerCubicCentimetre(1.40)).unwrap();
     assert!((rho - 1.40 / u.mass_density_g_cm3()).abs() < 1e-12);
-    let rho_kg = s.reduced_density(Density::KilogramsPerCubicMetre(1400.0)).unwrap();
+    let rho_kg = s
+        .reduced_density(Density::KilogramsPerCubicMetre(1400.0))
+        .unwrap();
     assert!((rho - rho_kg).abs() < 1e-12);
     let rho_n = s.reduced_density(Density::PerCubicNanometre(21.0)).unwrap();
     assert!((rho_n - 21.0 * 0.3405f64.powi(3)).abs() < 1e-9);

@@ -13,8 +13,8 @@
 //! moving dense system; the argon setup is the project's own example (`assets/`) made smaller.
 
 mod common;
-use noblescope::io::checkpoint::{write_atomically, Checkpoint};
 use noblescope::io::Setup;
+use noblescope::io::checkpoint::{Checkpoint, write_atomically};
 use noblescope::physics::{Observables, Simulation};
 use std::path::{Path, PathBuf};
 use std::process::Command;
@@ -43,7 +43,10 @@ fn setup_text(ensemble: &str, atoms: u64, steps: u64) -> String {
 
 const ENSEMBLES: [(&str, &str); 3] = [
     ("NVE", "Nve"),
-    ("stochastic rescale", "Nvt(thermostat: StochasticRescale(relaxation: Reduced(0.1)))"),
+    (
+        "stochastic rescale",
+        "Nvt(thermostat: StochasticRescale(relaxation: Reduced(0.1)))",
+    ),
     ("Langevin", "Nvt(thermostat: Langevin(friction: Reduced(2.0)))"),
 ];
 
@@ -59,7 +62,9 @@ fn steps(sim: &mut Simulation, n: u64, out: &mut Vec<[u64; 9]>) {
 }
 
 fn bits3(v: &[[f64; 3]]) -> Vec<[u64; 3]> {
-    v.iter().map(|x| [x[0].to_bits(), x[1].to_bits(), x[2].to_bits()]).collect()
+    v.iter()
+        .map(|x| [x[0].to_bits(), x[1].to_bits(), x[2].to_bits()])
+        .collect()
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -79,22 +84,46 @@ fn library_checkpoint_continues_bit_for_bit() {
         let mut b = Simulation::new(spec.clone()).unwrap();
         let mut trace_b = Vec::new();
         steps(&mut b, 300, &mut trace_b);
-        let saved = Checkpoint { setup: setup.clone(), spec: b.spec().clone(), state: b.state() };
+        let saved = Checkpoint {
+            setup: setup.clone(),
+            spec: b.spec().clone(),
+            state: b.state(),
+        };
         let bytes = saved.to_bytes();
         drop(b);
         let c = Checkpoint::from_bytes(&bytes, "memory").unwrap();
         assert_eq!(c, saved, "{name}: decode(encode(checkpoint)) differs");
         let mut b = Simulation::from_state(c.spec, c.state).unwrap();
         // The first observation after restoring must already be the saved step's.
-        assert_eq!(bits(&b.observe()), trace_a[299], "{name}: observables right after restoring");
+        assert_eq!(
+            bits(&b.observe()),
+            trace_a[299],
+            "{name}: observables right after restoring"
+        );
         steps(&mut b, 300, &mut trace_b);
 
-        assert!(a.list_builds() > 2, "{name}: list never rebuilt, the test would miss list state");
+        assert!(
+            a.list_builds() > 2,
+            "{name}: list never rebuilt, the test would miss list state"
+        );
         if let Some(k) = (0..600).find(|&k| trace_a[k] != trace_b[k]) {
-            panic!("{name}: step {} differs after continuing from a checkpoint: {:?} vs {:?}", k + 1, trace_a[k], trace_b[k]);
+            panic!(
+                "{name}: step {} differs after continuing from a checkpoint: {:?} vs {:?}",
+                k + 1,
+                trace_a[k],
+                trace_b[k]
+            );
         }
-        assert_eq!(bits3(&a.system().positions), bits3(&b.system().positions), "{name}: positions");
-        assert_eq!(bits3(&a.system().velocities), bits3(&b.system().velocities), "{name}: velocities");
+        assert_eq!(
+            bits3(&a.system().positions),
+            bits3(&b.system().positions),
+            "{name}: positions"
+        );
+        assert_eq!(
+            bits3(&a.system().velocities),
+            bits3(&b.system().velocities),
+            "{name}: velocities"
+        );
         assert_eq!(a.list_builds(), b.list_builds(), "{name}: list builds");
     }
 }
@@ -111,7 +140,10 @@ fn scratch(name: &str) -> PathBuf {
 }
 
 fn cli(args: &[&str]) {
-    let out = Command::new(env!("CARGO_BIN_EXE_noblescope")).args(args).output().unwrap();
+    let out = Command::new(env!("CARGO_BIN_EXE_noblescope"))
+        .args(args)
+        .output()
+        .unwrap();
     assert!(
         out.status.success(),
         "noblescope {args:?} failed ({:?}):\nstdout: {}\nstderr: {}",
@@ -145,8 +177,14 @@ Setup(
 #[test]
 fn cli_resume_continues_the_energy_log_byte_for_byte() {
     for (name, ensemble) in [
-        ("rescale", "Nvt(thermostat: StochasticRescale(relaxation: Femtoseconds(200.0)))"),
-        ("langevin", "Nvt(thermostat: Langevin(friction: PerPicosecond(5.0)))"),
+        (
+            "rescale",
+            "Nvt(thermostat: StochasticRescale(relaxation: Femtoseconds(200.0)))",
+        ),
+        (
+            "langevin",
+            "Nvt(thermostat: Langevin(friction: PerPicosecond(5.0)))",
+        ),
     ] {
         let dir = scratch(&format!("cli-{name}"));
         let setup = dir.join("argon.ron");
@@ -154,18 +192,43 @@ fn cli_resume_continues_the_energy_log_byte_for_byte() {
         let s = |p: &Path| p.to_str().unwrap().to_owned();
         let (whole, first, second) = (dir.join("whole"), dir.join("first"), dir.join("second"));
         cli(&["run", &s(&setup), "--out", &s(&whole), "--quiet"]);
-        cli(&["run", &s(&setup), "--steps", "200", "--out", &s(&first), "--quiet"]);
+        cli(&[
+            "run",
+            &s(&setup),
+            "--steps",
+            "200",
+            "--out",
+            &s(&first),
+            "--quiet",
+        ]);
         // No --steps: runs to the setup's 400.
-        cli(&["resume", &s(&first.join("final.checkpoint")), "--out", &s(&second), "--quiet"]);
+        cli(&[
+            "resume",
+            &s(&first.join("final.checkpoint")),
+            "--out",
+            &s(&second),
+            "--quiet",
+        ]);
 
         let read = |p: PathBuf| std::fs::read_to_string(p).unwrap();
         let whole_csv = read(whole.join("energy.csv"));
         let first_csv = read(first.join("energy.csv"));
         let second_csv = read(second.join("energy.csv"));
         let header = whole_csv.lines().next().unwrap();
-        assert!(header.contains("[K]"), "{name}: argon log has no SI columns: {header}");
-        assert_eq!(first_csv.lines().next(), Some(header), "{name}: first part header");
-        assert_eq!(second_csv.lines().next(), Some(header), "{name}: resumed part header");
+        assert!(
+            header.contains("[K]"),
+            "{name}: argon log has no SI columns: {header}"
+        );
+        assert_eq!(
+            first_csv.lines().next(),
+            Some(header),
+            "{name}: first part header"
+        );
+        assert_eq!(
+            second_csv.lines().next(),
+            Some(header),
+            "{name}: resumed part header"
+        );
         let mut joined: Vec<&str> = first_csv.lines().collect();
         joined.extend(second_csv.lines().skip(1));
         let whole_rows: Vec<&str> = whole_csv.lines().collect();
@@ -192,7 +255,11 @@ fn small_checkpoint(steps_to_run: u64) -> Checkpoint {
     let spec = setup.resolve().unwrap();
     let mut sim = Simulation::new(spec).unwrap();
     sim.run(steps_to_run).unwrap();
-    Checkpoint { setup, spec: sim.spec().clone(), state: sim.state() }
+    Checkpoint {
+        setup,
+        spec: sim.spec().clone(),
+        state: sim.state(),
+    }
 }
 
 /// Files in `dir` other than `keep`.
@@ -213,7 +280,11 @@ fn saving_over_an_existing_checkpoint_leaves_the_new_one() {
     assert_eq!(Checkpoint::load(&path).unwrap(), old);
     new.save(&path).unwrap();
     assert_eq!(Checkpoint::load(&path).unwrap(), new);
-    assert_eq!(leftovers(&dir, &["run.checkpoint"]), Vec::<String>::new(), "temporary files left behind");
+    assert_eq!(
+        leftovers(&dir, &["run.checkpoint"]),
+        Vec::<String>::new(),
+        "temporary files left behind"
+    );
     let _ = std::fs::remove_dir_all(&dir);
 }
 
@@ -226,8 +297,14 @@ fn truncated_or_changed_checkpoints_are_rejected_with_an_error() {
     for cut in cuts {
         let r = std::panic::catch_unwind(|| Checkpoint::from_bytes(&bytes[..cut], "cut.checkpoint"));
         match r {
-            Ok(Err(e)) => assert!(e.to_string().contains("cut.checkpoint"), "error does not name the file: {e}"),
-            Ok(Ok(_)) => panic!("a checkpoint truncated to {cut} of {} bytes was accepted", bytes.len()),
+            Ok(Err(e)) => assert!(
+                e.to_string().contains("cut.checkpoint"),
+                "error does not name the file: {e}"
+            ),
+            Ok(Ok(_)) => panic!(
+                "a checkpoint truncated to {cut} of {} bytes was accepted",
+                bytes.len()
+            ),
             Err(_) => panic!("a checkpoint truncated to {cut} bytes made the decoder panic"),
         }
     }
@@ -303,9 +380,19 @@ fn failed_write_leaves_the_previous_checkpoint_intact() {
     std::fs::create_dir(&blocker).unwrap();
     std::fs::write(blocker.join("occupied"), b"x").unwrap();
     let r = new.save(&path);
-    assert!(r.is_err(), "save succeeded although its temporary file could not be created");
-    assert!(r.unwrap_err().to_string().contains("run.checkpoint"), "error does not name the file");
-    assert_eq!(std::fs::read(&path).unwrap(), before, "the previous checkpoint was changed");
+    assert!(
+        r.is_err(),
+        "save succeeded although its temporary file could not be created"
+    );
+    assert!(
+        r.unwrap_err().to_string().contains("run.checkpoint"),
+        "error does not name the file"
+    );
+    assert_eq!(
+        std::fs::read(&path).unwrap(),
+        before,
+        "the previous checkpoint was changed"
+    );
     assert_eq!(Checkpoint::load(&path).unwrap(), old);
     std::fs::remove_dir_all(&blocker).unwrap();
 
@@ -323,14 +410,22 @@ fn failed_write_leaves_the_previous_checkpoint_intact() {
         std::fs::set_permissions(&ro, std::fs::Permissions::from_mode(0o755)).unwrap();
         if enforced {
             assert!(r.is_err(), "save into a read-only folder reported success");
-            assert_eq!(Checkpoint::load(&p).unwrap(), old, "the previous checkpoint was changed");
+            assert_eq!(
+                Checkpoint::load(&p).unwrap(),
+                old,
+                "the previous checkpoint was changed"
+            );
         } else {
             // Permissions not enforced (running as root): the save may succeed; it must then be whole.
             assert!(r.is_ok());
             assert_eq!(Checkpoint::load(&p).unwrap(), new);
         }
     }
-    assert_eq!(leftovers(&dir, &["run.checkpoint", "read-only"]), Vec::<String>::new(), "temporary files left behind");
+    assert_eq!(
+        leftovers(&dir, &["run.checkpoint", "read-only"]),
+        Vec::<String>::new(),
+        "temporary files left behind"
+    );
 
     // write_atomically itself: replacing works and leaves no temporary file.
     write_atomically(&path, &new.to_bytes()).unwrap();
@@ -347,14 +442,19 @@ fn header_scalars_round_trip_bit_for_bit() {
     let base = small_checkpoint(2);
     let mut s: u64 = 12345;
     let mut next = || {
-        s = s.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+        s = s
+            .wrapping_mul(6364136223846793005)
+            .wrapping_add(1442695040888963407);
         s
     };
     let mut failures = Vec::new();
     for _ in 0..3000 {
         let mut c = base.clone();
         // Mantissa random, exponent within ±2^20: the range heat and energies live in.
-        let mut value = || f64::from_bits((next() >> 12) | ((1023 + (next() % 41) - 20) << 52)) * if next() & 1 == 0 { 1.0 } else { -1.0 };
+        let mut value = || {
+            f64::from_bits((next() >> 12) | ((1023 + (next() % 41) - 20) << 52))
+                * if next() & 1 == 0 { 1.0 } else { -1.0 }
+        };
         c.state.heat = value();
         c.state.drift_origin = value();
         c.state.time = value().abs();
@@ -362,7 +462,11 @@ fn header_scalars_round_trip_bit_for_bit() {
         let back = Checkpoint::from_bytes(&c.to_bytes(), "memory").unwrap();
         for (field, a, b) in [
             ("state.heat", c.state.heat, back.state.heat),
-            ("state.drift_origin", c.state.drift_origin, back.state.drift_origin),
+            (
+                "state.drift_origin",
+                c.state.drift_origin,
+                back.state.drift_origin,
+            ),
             ("state.time", c.state.time, back.state.time),
             ("spec.timestep", c.spec.timestep, back.spec.timestep),
         ] {
@@ -371,5 +475,10 @@ fn header_scalars_round_trip_bit_for_bit() {
             }
         }
     }
-    assert!(failures.is_empty(), "{} of 12000 header floats changed in a checkpoint round trip, e.g. {:?}", failures.len(), &failures[..failures.len().min(4)]);
+    assert!(
+        failures.is_empty(),
+        "{} of 12000 header floats changed in a checkpoint round trip, e.g. {:?}",
+        failures.len(),
+        &failures[..failures.len().min(4)]
+    );
 }

@@ -10,7 +10,17 @@ use noblescope::physics::{PotentialMode, Simulation, SimulationState, Thermostat
 
 /// An equilibrated liquid state at T* ≈ 0.72 (thermostatted, then handed to NVE runs).
 fn equilibrated() -> (noblescope::physics::SimulationSpec, SimulationState) {
-    let spec = reduced_spec(864, 0.8442, 0.72, 2.5, PotentialMode::ShiftedForce, Thermostat::StochasticRescale { target: 0.72, tau: 0.1 });
+    let spec = reduced_spec(
+        864,
+        0.8442,
+        0.72,
+        2.5,
+        PotentialMode::ShiftedForce,
+        Thermostat::StochasticRescale {
+            target: 0.72,
+            tau: 0.1,
+        },
+    );
     let mut sim = Simulation::new(spec.clone()).unwrap();
     sim.run(3_000).unwrap();
     let mut nve = spec;
@@ -19,7 +29,13 @@ fn equilibrated() -> (noblescope::physics::SimulationSpec, SimulationState) {
 }
 
 /// Runs NVE from `state` for `steps` at `dt`, returning total energies per atom every `every`.
-fn nve_energies(spec: &noblescope::physics::SimulationSpec, state: &SimulationState, dt: f64, steps: u64, every: u64) -> Vec<f64> {
+fn nve_energies(
+    spec: &noblescope::physics::SimulationSpec,
+    state: &SimulationState,
+    dt: f64,
+    steps: u64,
+    every: u64,
+) -> Vec<f64> {
     let mut s = spec.clone();
     s.timestep = dt;
     let mut st = state.clone();
@@ -42,7 +58,10 @@ fn total_energy_drifts_less_than_1e_minus_4_over_10000_steps() {
     let worst = e.iter().map(|x| ((x - e0) / e0).abs()).fold(0.0, f64::max);
     eprintln!("largest relative deviation of total energy over 10,000 steps: {worst:.3e}");
     assert!(worst < 1e-4, "energy drifted by {worst:e}");
-    assert!(worst > 0.0, "the energy must change at all for this test to mean something");
+    assert!(
+        worst > 0.0,
+        "the energy must change at all for this test to mean something"
+    );
 }
 
 #[test]
@@ -57,5 +76,8 @@ fn energy_error_scales_as_dt_squared() {
     let large = rms(&nve_energies(&spec, &state, 0.004, 1_250, 5));
     let ratio = large / small;
     eprintln!("energy fluctuation at dt=0.002: {small:.3e}, at 0.004: {large:.3e}, ratio {ratio:.2}");
-    assert!((3.0..5.3).contains(&ratio), "doubling dt changed the energy error by {ratio}, expected about 4");
+    assert!(
+        (3.0..5.3).contains(&ratio),
+        "doubling dt changed the energy error by {ratio}, expected about 4"
+    );
 }

@@ -9,7 +9,10 @@ use std::time::{Duration, Instant};
 fn small(steps: u64, sample_every: u64) -> Setup {
     Setup {
         title: "protocol".into(),
-        species: vec![SpeciesShare { kind: Species::ReducedLJ, share: 1.0 }],
+        species: vec![SpeciesShare {
+            kind: Species::ReducedLJ,
+            share: 1.0,
+        }],
         atoms: 500,
         density: Density::Reduced(0.8),
         temperature: Temperature::Reduced(1.0),
@@ -47,19 +50,49 @@ fn wait_for(h: &EngineHandle, seen: &mut Vec<Event>, secs: u64, want: impl Fn(&E
 fn no_sample_is_lost_across_the_channel() {
     let h = EngineHandle::spawn(small(100_000, 2)).unwrap();
     let mut seen = Vec::new();
-    assert!(wait_for(&h, &mut seen, 10, |e| matches!(e, Event::Started { .. })));
+    assert!(wait_for(&h, &mut seen, 10, |e| matches!(
+        e,
+        Event::Started { .. }
+    )));
     h.send(Command::Run);
     // Let the engine run ahead while the reader does nothing.
     std::thread::sleep(Duration::from_millis(600));
     h.send(Command::Pause);
-    assert!(wait_for(&h, &mut seen, 10, |e| matches!(e, Event::Status(s) if !s.running && s.step > 50)));
+    assert!(wait_for(
+        &h,
+        &mut seen,
+        10,
+        |e| matches!(e, Event::Status(s) if !s.running && s.step > 50)
+    ));
     // Drain what is left after the pause settled.
     std::thread::sleep(Duration::from_millis(200));
     seen.extend(h.events());
-    let last_step = seen.iter().rev().find_map(|e| if let Event::Status(s) = e { Some(s.step) } else { None }).unwrap();
-    let steps: Vec<u64> = seen.iter().filter_map(|e| if let Event::Sample(o) = e { Some(o.step) } else { None }).collect();
+    let last_step = seen
+        .iter()
+        .rev()
+        .find_map(|e| {
+            if let Event::Status(s) = e {
+                Some(s.step)
+            } else {
+                None
+            }
+        })
+        .unwrap();
+    let steps: Vec<u64> = seen
+        .iter()
+        .filter_map(|e| {
+            if let Event::Sample(o) = e {
+                Some(o.step)
+            } else {
+                None
+            }
+        })
+        .collect();
     let expected: Vec<u64> = (0..=last_step / 2).map(|k| 2 * k).collect();
-    assert_eq!(steps, expected, "samples must arrive complete and in order up to step {last_step}");
+    assert_eq!(
+        steps, expected,
+        "samples must arrive complete and in order up to step {last_step}"
+    );
 }
 
 #[test]
@@ -73,7 +106,10 @@ fn frames_are_replaced_not_queued() {
             f.positions.push([step as f32; 3]);
         });
     }
-    assert!(!m.wants_frame(), "an untaken frame stops the writer from making more");
+    assert!(
+        !m.wants_frame(),
+        "an untaken frame stops the writer from making more"
+    );
     let mut mine = Frame::default();
     assert!(m.take(&mut mine));
     assert_eq!(mine.step, 5, "only the newest frame is handed over");
@@ -106,20 +142,46 @@ fn frame_buffers_are_swapped_not_reallocated() {
 fn commands_to_a_paused_engine_take_effect() {
     let h = EngineHandle::spawn(small(100_000, 1)).unwrap();
     let mut seen = Vec::new();
-    assert!(wait_for(&h, &mut seen, 10, |e| matches!(e, Event::Started { .. })));
+    assert!(wait_for(&h, &mut seen, 10, |e| matches!(
+        e,
+        Event::Started { .. }
+    )));
     // A single step while paused advances the step counter by one.
     h.send(Command::StepOnce);
-    assert!(wait_for(&h, &mut seen, 10, |e| matches!(e, Event::Sample(o) if o.step == 1)));
+    assert!(wait_for(
+        &h,
+        &mut seen,
+        10,
+        |e| matches!(e, Event::Sample(o) if o.step == 1)
+    ));
     // A live timestep change while paused is confirmed and reflected in the setup.
     h.send(Command::SetTimestep(Dt::Reduced(0.002)));
-    assert!(wait_for(&h, &mut seen, 10, |e| matches!(e, Event::SetupChanged(s) if s.timestep == Dt::Reduced(0.002))));
+    assert!(wait_for(
+        &h,
+        &mut seen,
+        10,
+        |e| matches!(e, Event::SetupChanged(s) if s.timestep == Dt::Reduced(0.002))
+    ));
     // An invalid apply is refused and leaves the simulation where it was.
     let mut bad = small(100_000, 1);
     bad.density = Density::Reduced(40.0);
     h.send(Command::Apply(Box::new(bad)));
-    assert!(wait_for(&h, &mut seen, 10, |e| matches!(e, Event::Rejected { reason, .. } if reason.contains("density"))));
+    assert!(wait_for(
+        &h,
+        &mut seen,
+        10,
+        |e| matches!(e, Event::Rejected { reason, .. } if reason.contains("density"))
+    ));
     h.send(Command::StepOnce);
-    assert!(wait_for(&h, &mut seen, 10, |e| matches!(e, Event::Sample(o) if o.step == 2)), "the old simulation continues at step 2");
+    assert!(
+        wait_for(
+            &h,
+            &mut seen,
+            10,
+            |e| matches!(e, Event::Sample(o) if o.step == 2)
+        ),
+        "the old simulation continues at step 2"
+    );
     let mut frame = Frame::default();
     let until = Instant::now() + Duration::from_secs(5);
     while !(h.take_frame(&mut frame) && frame.step == 2) {

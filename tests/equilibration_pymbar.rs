@@ -23,12 +23,23 @@ use serde_json::Value;
 use std::path::Path;
 
 fn data(name: &str) -> String {
-    let p = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/data").join(name);
-    std::fs::read_to_string(&p).unwrap_or_else(|e| panic!("{}: {e} (run scripts/reference/pymbar_equilibration.py)", p.display()))
+    let p = Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("tests/data")
+        .join(name);
+    std::fs::read_to_string(&p).unwrap_or_else(|e| {
+        panic!(
+            "{}: {e} (run scripts/reference/pymbar_equilibration.py)",
+            p.display()
+        )
+    })
 }
 
 fn series(file: &str) -> Vec<f64> {
-    data(file).lines().filter(|l| !l.starts_with('#') && !l.trim().is_empty()).map(|l| l.trim().parse().unwrap()).collect()
+    data(file)
+        .lines()
+        .filter(|l| !l.starts_with('#') && !l.trim().is_empty())
+        .map(|l| l.trim().parse().unwrap())
+        .collect()
 }
 
 fn reference() -> Value {
@@ -78,22 +89,36 @@ fn detect_equilibration_matches_pymbar() {
             let ours = detect_equilibration(&x, nskip);
             let start = p["start"].as_u64().unwrap() as usize;
             if ours.start != start {
-                failures.push(format!("{name} nskip {nskip}: start {} vs pymbar {start}", ours.start));
+                failures.push(format!(
+                    "{name} nskip {nskip}: start {} vs pymbar {start}",
+                    ours.start
+                ));
             }
             // pymbar's float32 g: ours rounded to float32 must be the same float32. (Compared as
             // f32 on both sides: the JSON reader may land one f64 ulp off the printed value.)
             let g32 = p["g"].as_f64().unwrap();
             if ours.inefficiency as f32 != g32 as f32 {
-                failures.push(format!("{name} nskip {nskip}: g {} (as f32 {}) vs pymbar {g32}", ours.inefficiency, ours.inefficiency as f32));
+                failures.push(format!(
+                    "{name} nskip {nskip}: g {} (as f32 {}) vs pymbar {g32}",
+                    ours.inefficiency, ours.inefficiency as f32
+                ));
             }
             let n32 = p["neff"].as_f64().unwrap();
             if rel(ours.effective_samples, n32) > 2e-7 {
-                failures.push(format!("{name} nskip {nskip}: Neff {} vs pymbar {n32}", ours.effective_samples));
+                failures.push(format!(
+                    "{name} nskip {nskip}: Neff {} vs pymbar {n32}",
+                    ours.effective_samples
+                ));
             }
             // Against pymbar's loop in float64 (same start expected, so same g and Neff).
             let (g64, n64) = (q["g"].as_f64().unwrap(), q["neff"].as_f64().unwrap());
-            if q["start"].as_u64().unwrap() as usize == ours.start && (rel(ours.inefficiency, g64) > 1e-9 || rel(ours.effective_samples, n64) > 1e-9) {
-                failures.push(format!("{name} nskip {nskip}: g {} / Neff {} vs float64 loop {g64} / {n64}", ours.inefficiency, ours.effective_samples));
+            if q["start"].as_u64().unwrap() as usize == ours.start
+                && (rel(ours.inefficiency, g64) > 1e-9 || rel(ours.effective_samples, n64) > 1e-9)
+            {
+                failures.push(format!(
+                    "{name} nskip {nskip}: g {} / Neff {} vs float64 loop {g64} / {n64}",
+                    ours.inefficiency, ours.effective_samples
+                ));
             }
         }
     }
@@ -110,8 +135,16 @@ fn constant_series_detection_matches_pymbar_special_case() {
     for p in e["detect"].as_array().unwrap() {
         let nskip = p["nskip"].as_u64().unwrap() as usize;
         let ours = detect_equilibration(&x, nskip);
-        let want = (p["start"].as_u64().unwrap() as usize, p["g"].as_f64().unwrap(), p["neff"].as_f64().unwrap());
-        assert_eq!((ours.start, ours.inefficiency, ours.effective_samples), want, "constant series, nskip {nskip}");
+        let want = (
+            p["start"].as_u64().unwrap() as usize,
+            p["g"].as_f64().unwrap(),
+            p["neff"].as_f64().unwrap(),
+        );
+        assert_eq!(
+            (ours.start, ours.inefficiency, ours.effective_samples),
+            want,
+            "constant series, nskip {nskip}"
+        );
     }
 }
 
@@ -161,11 +194,17 @@ fn block_average_matches_the_analytic_error_of_ar1() {
             let x = ar1(&mut rng, n, phi);
             let e = block_average(&x);
             let mean = x.iter().sum::<f64>() / n as f64;
-            assert!((e.mean - mean).abs() <= 1e-15 * x.iter().map(|v| v.abs()).sum::<f64>(), "block_average mean is not the sample mean");
+            assert!(
+                (e.mean - mean).abs() <= 1e-15 * x.iter().map(|v| v.abs()).sum::<f64>(),
+                "block_average mean is not the sample mean"
+            );
             ratios.push(e.stderr / analytic);
         }
         let m = ratios.iter().sum::<f64>() / ratios.len() as f64;
-        assert!((0.9..=1.25).contains(&m), "φ = {phi}: mean stderr ratio to analytic {m:.3} ({ratios:.2?})");
+        assert!(
+            (0.9..=1.25).contains(&m),
+            "φ = {phi}: mean stderr ratio to analytic {m:.3} ({ratios:.2?})"
+        );
     }
 }
 

@@ -41,7 +41,11 @@ struct Point {
 }
 
 fn reference() -> (String, Vec<Point>) {
-    let text = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/teqp_lj_eos.json")).expect("reference file");
+    let text = std::fs::read_to_string(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/tests/data/teqp_lj_eos.json"
+    ))
+    .expect("reference file");
     let doc: serde_json::Value = serde_json::from_str(&text).expect("valid JSON");
     assert_eq!(doc["model_kind"], "LJ126_TholJPCRD2016");
     let version = doc["teqp_version"].as_str().expect("teqp version").to_string();
@@ -74,13 +78,27 @@ fn check(temperature: f64, density: f64, produce: u64) {
     // thermostat to T. The dilute point starts at T directly.
     let dense = density >= 0.5;
     let start = if dense { 3.0 } else { temperature };
-    let mut spec = reduced_spec(ATOMS, density, start, CUTOFF, PotentialMode::Truncated, Thermostat::StochasticRescale { target: start, tau: 0.1 });
+    let mut spec = reduced_spec(
+        ATOMS,
+        density,
+        start,
+        CUTOFF,
+        PotentialMode::Truncated,
+        Thermostat::StochasticRescale {
+            target: start,
+            tau: 0.1,
+        },
+    );
     spec.tail_correction = true;
     let mut sim = Simulation::new(spec).expect("valid spec: r_c + skin within half the box");
     if dense {
         sim.run(MELT).expect("melting runs");
     }
-    sim.set_thermostat(Thermostat::StochasticRescale { target: temperature, tau: 0.1 }).expect("valid thermostat");
+    sim.set_thermostat(Thermostat::StochasticRescale {
+        target: temperature,
+        tau: 0.1,
+    })
+    .expect("valid thermostat");
     let samples = sample(&mut sim, EQUILIBRATE, produce, EVERY);
     let u = estimate(&samples, |o| o.potential);
     let p = estimate(&samples, |o| o.pressure);
@@ -93,10 +111,26 @@ fn check(temperature: f64, density: f64, produce: u64) {
         p.mean, p.stderr, r.pressure, u.mean, u.stderr, r.u_res, t.mean, t.stderr
     );
     // The check must be able to fail: our own noise must be small against the EOS allowance.
-    assert!(4.0 * p.stderr < 2.0 * eos_p && 4.0 * u.stderr < 2.0 * eos_u, "run too short to test anything: {p:?} {u:?}");
-    assert!((t.mean - temperature).abs() < 4.0 * t.stderr + 2e-3 * temperature, "thermostat holds T: {t:?}");
-    assert!((p.mean - r.pressure).abs() < tol_p, "T {temperature} rho {density}: P {} vs teqp {} (tolerance {tol_p})", p.mean, r.pressure);
-    assert!((u.mean - r.u_res).abs() < tol_u, "T {temperature} rho {density}: U/N {} vs teqp {} (tolerance {tol_u})", u.mean, r.u_res);
+    assert!(
+        4.0 * p.stderr < 2.0 * eos_p && 4.0 * u.stderr < 2.0 * eos_u,
+        "run too short to test anything: {p:?} {u:?}"
+    );
+    assert!(
+        (t.mean - temperature).abs() < 4.0 * t.stderr + 2e-3 * temperature,
+        "thermostat holds T: {t:?}"
+    );
+    assert!(
+        (p.mean - r.pressure).abs() < tol_p,
+        "T {temperature} rho {density}: P {} vs teqp {} (tolerance {tol_p})",
+        p.mean,
+        r.pressure
+    );
+    assert!(
+        (u.mean - r.u_res).abs() < tol_u,
+        "T {temperature} rho {density}: U/N {} vs teqp {} (tolerance {tol_u})",
+        u.mean,
+        r.u_res
+    );
 }
 
 // Run lengths in steps of dt = 0.005 τ (the `reduced_spec` default); production is set per point

@@ -17,7 +17,14 @@ fn normal_cdf(x: f64) -> f64 {
 /// erf with |error| < 3e-7 (Abramowitz & Stegun 7.1.28).
 fn erf(x: f64) -> f64 {
     let t = x.abs();
-    let a = [0.070_523_078_4, 0.042_282_012_3, 0.009_270_527_2, 0.000_152_014_3, 0.000_276_567_2, 0.000_043_063_8];
+    let a = [
+        0.070_523_078_4,
+        0.042_282_012_3,
+        0.009_270_527_2,
+        0.000_152_014_3,
+        0.000_276_567_2,
+        0.000_043_063_8,
+    ];
     let p = 1.0 + t * (a[0] + t * (a[1] + t * (a[2] + t * (a[3] + t * (a[4] + t * a[5])))));
     let r = 1.0 - 1.0 / p.powi(16);
     if x < 0.0 { -r } else { r }
@@ -26,7 +33,17 @@ fn erf(x: f64) -> f64 {
 #[test]
 fn velocities_are_maxwell_boltzmann_after_equilibration() {
     // A two-species mixture, started far from the target temperature.
-    let mut spec = reduced_spec(2000, 0.7, 3.0, 2.5, PotentialMode::TruncatedShifted, Thermostat::Langevin { target: 1.2, gamma: 1.0 });
+    let mut spec = reduced_spec(
+        2000,
+        0.7,
+        3.0,
+        2.5,
+        PotentialMode::TruncatedShifted,
+        Thermostat::Langevin {
+            target: 1.2,
+            gamma: 1.0,
+        },
+    );
     spec.kinds = vec![Species::Argon, Species::Krypton];
     spec.counts = vec![1000, 1000];
     let mut sim = Simulation::new(spec).unwrap();
@@ -49,10 +66,14 @@ fn velocities_are_maxwell_boltzmann_after_equilibration() {
     assert!((m2 - 1.0).abs() < 5.0 * (2.0 / n).sqrt() * 3.0, "<z²> = {m2}");
     assert!((m4 - 3.0).abs() < 5.0 * (96.0 / n).sqrt() * 3.0, "<z⁴> = {m4}");
     z.sort_by(f64::total_cmp);
-    let d = z.iter().enumerate().map(|(k, &x)| {
-        let f = normal_cdf(x);
-        (f - k as f64 / n).abs().max(((k + 1) as f64 / n - f).abs())
-    }).fold(0.0, f64::max);
+    let d = z
+        .iter()
+        .enumerate()
+        .map(|(k, &x)| {
+            let f = normal_cdf(x);
+            (f - k as f64 / n).abs().max(((k + 1) as f64 / n - f).abs())
+        })
+        .fold(0.0, f64::max);
     // The 20 frames are not fully independent: count only one frame's worth of samples.
     let n_eff = n / 20.0;
     let critical = 1.63 / n_eff.sqrt();

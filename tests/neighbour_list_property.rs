@@ -22,10 +22,10 @@
 //! Library: proptest 1.x (dev-dependency). Case counts are kept modest so the file runs in a
 //! few seconds in release.
 
-use noblescope::physics::forces::{self, ForceScratch};
-use noblescope::physics::neighbours::{separation, NeighbourList};
-use noblescope::physics::potential::PairTable;
 use noblescope::physics::PotentialMode;
+use noblescope::physics::forces::{self, ForceScratch};
+use noblescope::physics::neighbours::{NeighbourList, separation};
+use noblescope::physics::potential::PairTable;
 use proptest::prelude::*;
 use std::collections::BTreeSet;
 
@@ -99,15 +99,36 @@ fn allowed_margin(l: f64) -> f64 {
 }
 
 /// Checks the list's pair set against the all-pairs one under the contract in the module doc.
-fn check_pair_set(got: &BTreeSet<(u32, u32)>, pos: &[[f64; 3]], l: f64, reach: f64) -> Result<(), TestCaseError> {
+fn check_pair_set(
+    got: &BTreeSet<(u32, u32)>,
+    pos: &[[f64; 3]],
+    l: f64,
+    reach: f64,
+) -> Result<(), TestCaseError> {
     let want = brute_pairs(pos, l, reach);
     let missing: Vec<_> = want.difference(got).take(5).collect();
-    prop_assert!(missing.is_empty(), "pairs within r_c + skin missing from the list: {:?} (of {} pairs)", missing, want.len());
+    prop_assert!(
+        missing.is_empty(),
+        "pairs within r_c + skin missing from the list: {:?} (of {} pairs)",
+        missing,
+        want.len()
+    );
     let cells = (l / reach).floor() as usize;
     let beyond = reach + allowed_margin(l);
     for &(i, j) in got.difference(&want) {
-        let r = separation(&pos[i as usize], &pos[j as usize], l, 1.0 / l).1.sqrt();
-        prop_assert!(r < beyond, "pair ({}, {}) at r = {} listed; reach {}, {} cells per edge, limit {}", i, j, r, reach, cells, beyond);
+        let r = separation(&pos[i as usize], &pos[j as usize], l, 1.0 / l)
+            .1
+            .sqrt();
+        prop_assert!(
+            r < beyond,
+            "pair ({}, {}) at r = {} listed; reach {}, {} cells per edge, limit {}",
+            i,
+            j,
+            r,
+            reach,
+            cells,
+            beyond
+        );
     }
     Ok(())
 }
@@ -129,7 +150,11 @@ fn list_pairs(list: &NeighbourList, n: usize) -> Result<BTreeSet<(u32, u32)>, Te
 fn table(c: &Config, species: usize) -> PairTable {
     // Two species with different ε and σ (Lorentz–Berthelot mixing in the table); values are
     // arbitrary test parameters, not a real mixture.
-    let (eps, sig): (Vec<f64>, Vec<f64>) = if species == 1 { (vec![1.0], vec![1.0]) } else { (vec![1.0, 1.7], vec![1.0, 1.25]) };
+    let (eps, sig): (Vec<f64>, Vec<f64>) = if species == 1 {
+        (vec![1.0], vec![1.0])
+    } else {
+        (vec![1.0, 1.7], vec![1.0, 1.25])
+    };
     PairTable::lorentz_berthelot(&eps, &sig, c.cutoff, c.mode)
 }
 
@@ -166,14 +191,30 @@ fn check_forces(c: &Config, species: usize) -> Result<(), TestCaseError> {
         }
     }
     let tol = 1e-10;
-    prop_assert!((sums.potential - sums_ref.potential).abs() <= tol * e_mag, "energy {} vs {} (Σ|e| {})", sums.potential, sums_ref.potential, e_mag);
-    prop_assert!((sums.virial - sums_ref.virial).abs() <= tol * w_mag, "virial {} vs {} (Σ|w| {})", sums.virial, sums_ref.virial, w_mag);
+    prop_assert!(
+        (sums.potential - sums_ref.potential).abs() <= tol * e_mag,
+        "energy {} vs {} (Σ|e| {})",
+        sums.potential,
+        sums_ref.potential,
+        e_mag
+    );
+    prop_assert!(
+        (sums.virial - sums_ref.virial).abs() <= tol * w_mag,
+        "virial {} vs {} (Σ|w| {})",
+        sums.virial,
+        sums_ref.virial,
+        w_mag
+    );
     for i in 0..n {
         for k in 0..3 {
             prop_assert!(
                 (f[i][k] - f_ref[i][k]).abs() <= tol * mag[i][k],
                 "force on atom {} component {}: {} vs {} (Σ|f| {})",
-                i, k, f[i][k], f_ref[i][k], mag[i][k]
+                i,
+                k,
+                f[i][k],
+                f_ref[i][k],
+                mag[i][k]
             );
         }
     }
@@ -185,7 +226,11 @@ fn check_forces(c: &Config, species: usize) -> Result<(), TestCaseError> {
 /// force loop race-free, per the module doc of `physics::neighbours`).
 fn check_slabs(list: &NeighbourList, n: usize) -> Result<(), TestCaseError> {
     let slabs = list.slabs();
-    prop_assert!(slabs == 1 || (slabs >= 3 && slabs.is_multiple_of(3)), "{} slabs", slabs);
+    prop_assert!(
+        slabs == 1 || (slabs >= 3 && slabs.is_multiple_of(3)),
+        "{} slabs",
+        slabs
+    );
     let mut slab_of = vec![usize::MAX; n];
     for s in 0..slabs {
         for &i in list.slab(s) {
@@ -198,7 +243,14 @@ fn check_slabs(list: &NeighbourList, n: usize) -> Result<(), TestCaseError> {
         for i in 0..n {
             for &j in list.partners(i) {
                 let d = (slab_of[i] + slabs - slab_of[j as usize]) % slabs;
-                prop_assert!(d == 0 || d == 1 || d == slabs - 1, "pair ({}, {}) spans slabs {} and {}", i, j, slab_of[i], slab_of[j as usize]);
+                prop_assert!(
+                    d == 0 || d == 1 || d == slabs - 1,
+                    "pair ({}, {}) spans slabs {} and {}",
+                    i,
+                    j,
+                    slab_of[i],
+                    slab_of[j as usize]
+                );
             }
         }
     }
@@ -254,11 +306,15 @@ fn large_box_with_many_cells_and_slabs() {
     // Deterministic pseudo-random positions (a 64-bit LCG, Knuth MMIX constants): invented data.
     let mut s: u64 = 0x9E37_79B9_7F4A_7C15;
     let mut u = || {
-        s = s.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+        s = s
+            .wrapping_mul(6364136223846793005)
+            .wrapping_add(1442695040888963407);
         (s >> 11) as f64 / (1u64 << 53) as f64
     };
     let (n, l, rc, skin) = (3000usize, 16.0, 2.5, 0.3);
-    let positions: Vec<[f64; 3]> = (0..n).map(|_| [u() * 3.0 * l - l, u() * l, u() * l + 5.0 * l]).collect();
+    let positions: Vec<[f64; 3]> = (0..n)
+        .map(|_| [u() * 3.0 * l - l, u() * l, u() * l + 5.0 * l])
+        .collect();
     let types: Vec<u8> = (0..n).map(|i| (i % 3 == 0) as u8).collect();
     let mut list = NeighbourList::new(rc, skin);
     list.build(&positions, l);
@@ -266,6 +322,13 @@ fn large_box_with_many_cells_and_slabs() {
     let got = list_pairs(&list, n).unwrap();
     check_pair_set(&got, &positions, l, rc + skin).unwrap();
     check_slabs(&list, n).unwrap();
-    let c = Config { box_length: l, cutoff: rc, skin, positions, types, mode: PotentialMode::ShiftedForce };
+    let c = Config {
+        box_length: l,
+        cutoff: rc,
+        skin,
+        positions,
+        types,
+        mode: PotentialMode::ShiftedForce,
+    };
     check_forces(&c, 2).unwrap();
 }

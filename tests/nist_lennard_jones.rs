@@ -25,11 +25,25 @@ const NIST: [(f64, f64, f64); 6] = [
 fn check(density: f64, energy: f64, pressure: f64) {
     // Melt the start lattice at T* = 2 first (common practice: a perfect fcc lattice at the
     // denser points would otherwise stay a superheated crystal), then cool to T* = 0.85.
-    let mut spec = reduced_spec(500, density, 2.0, 3.0, PotentialMode::Truncated, Thermostat::StochasticRescale { target: 2.0, tau: 0.1 });
+    let mut spec = reduced_spec(
+        500,
+        density,
+        2.0,
+        3.0,
+        PotentialMode::Truncated,
+        Thermostat::StochasticRescale {
+            target: 2.0,
+            tau: 0.1,
+        },
+    );
     spec.tail_correction = true;
     let mut sim = Simulation::new(spec).expect("valid spec");
     sim.run(4_000).expect("melting runs");
-    sim.set_thermostat(Thermostat::StochasticRescale { target: 0.85, tau: 0.1 }).expect("valid thermostat");
+    sim.set_thermostat(Thermostat::StochasticRescale {
+        target: 0.85,
+        tau: 0.1,
+    })
+    .expect("valid thermostat");
     let samples = sample(&mut sim, 10_000, 60_000, 10);
     let u = estimate(&samples, |o| o.potential);
     let p = estimate(&samples, |o| o.pressure);
@@ -39,11 +53,25 @@ fn check(density: f64, energy: f64, pressure: f64) {
         "rho {density}: U {:.5} ± {:.5} (NIST {energy}), P {:.5} ± {:.5} (NIST {pressure}), T {:.4}",
         u.mean, u.stderr, p.mean, p.stderr, t.mean
     );
-    assert!((t.mean - 0.85).abs() < 4.0 * t.stderr + 2e-3, "thermostat holds T: {t:?}");
-    assert!((u.mean - energy).abs() < tol_u, "rho {density}: U/N {} vs NIST {energy} (tolerance {tol_u})", u.mean);
-    assert!((p.mean - pressure).abs() < tol_p, "rho {density}: P {} vs NIST {pressure} (tolerance {tol_p})", p.mean);
+    assert!(
+        (t.mean - 0.85).abs() < 4.0 * t.stderr + 2e-3,
+        "thermostat holds T: {t:?}"
+    );
+    assert!(
+        (u.mean - energy).abs() < tol_u,
+        "rho {density}: U/N {} vs NIST {energy} (tolerance {tol_u})",
+        u.mean
+    );
+    assert!(
+        (p.mean - pressure).abs() < tol_p,
+        "rho {density}: P {} vs NIST {pressure} (tolerance {tol_p})",
+        p.mean
+    );
     // The check must be able to fail: our errors are small against the spread of the table.
-    assert!(u.stderr < 0.01 && p.stderr < 0.05, "run too short to test anything: {u:?} {p:?}");
+    assert!(
+        u.stderr < 0.01 && p.stderr < 0.05,
+        "run too short to test anything: {u:?} {p:?}"
+    );
 }
 
 #[test]

@@ -32,7 +32,16 @@ fn dense_liquid_rdf_has_the_expected_shape() {
     let setup = dir.join("liquid.ron");
     std::fs::write(&setup, SETUP).unwrap();
     let out = dir.join("out");
-    let st = Command::new(env!("CARGO_BIN_EXE_noblescope")).args(["run", setup.to_str().unwrap(), "--quiet", "--out", out.to_str().unwrap()]).status().unwrap();
+    let st = Command::new(env!("CARGO_BIN_EXE_noblescope"))
+        .args([
+            "run",
+            setup.to_str().unwrap(),
+            "--quiet",
+            "--out",
+            out.to_str().unwrap(),
+        ])
+        .status()
+        .unwrap();
     assert!(st.success());
     let text = std::fs::read_to_string(out.join("rdf.csv")).unwrap();
     let mut lines = text.lines();
@@ -45,12 +54,22 @@ fn dense_liquid_rdf_has_the_expected_shape() {
         .collect();
     assert_eq!(rows.len(), 200);
     assert!(rows.last().unwrap()[0] < 2.5);
-    let core = rows.iter().filter(|r| r[0] < 0.85).map(|r| r[1]).fold(0.0, f64::max);
+    let core = rows
+        .iter()
+        .filter(|r| r[0] < 0.85)
+        .map(|r| r[1])
+        .fold(0.0, f64::max);
     assert!(core < 0.01, "atoms inside the core: g = {core}");
     let peak = rows.iter().max_by(|a, b| a[1].total_cmp(&b[1])).unwrap();
-    assert!((1.0..1.2).contains(&peak[0]) && (2.4..3.4).contains(&peak[1]), "first peak {peak:?}");
+    assert!(
+        (1.0..1.2).contains(&peak[0]) && (2.4..3.4).contains(&peak[1]),
+        "first peak {peak:?}"
+    );
     // First minimum near 1.5σ: about 12 neighbours inside it.
     let shell = rows.iter().find(|r| r[0] >= 1.5).unwrap();
-    assert!((11.0..14.0).contains(&shell[2]), "coordination at 1.5σ: {shell:?}");
+    assert!(
+        (11.0..14.0).contains(&shell[2]),
+        "coordination at 1.5σ: {shell:?}"
+    );
     let _ = std::fs::remove_dir_all(&dir);
 }

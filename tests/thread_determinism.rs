@@ -43,11 +43,16 @@ struct Trace {
 }
 
 fn bits3(v: &[[f64; 3]]) -> Vec<[u64; 3]> {
-    v.iter().map(|x| [x[0].to_bits(), x[1].to_bits(), x[2].to_bits()]).collect()
+    v.iter()
+        .map(|x| [x[0].to_bits(), x[1].to_bits(), x[2].to_bits()])
+        .collect()
 }
 
 fn run(spec: &SimulationSpec, threads: usize) -> Trace {
-    let pool = rayon::ThreadPoolBuilder::new().num_threads(threads).build().unwrap();
+    let pool = rayon::ThreadPoolBuilder::new()
+        .num_threads(threads)
+        .build()
+        .unwrap();
     pool.install(|| {
         assert_eq!(rayon::current_num_threads(), threads);
         let mut sim = Simulation::new(spec.clone()).unwrap();
@@ -75,13 +80,23 @@ fn check(name: &str, spec: SimulationSpec, min_slabs: usize, max_slabs: usize) {
         "{name}: {} slabs, wanted {min_slabs} to {max_slabs}",
         one.slabs
     );
-    assert!(one.builds > 1, "{name}: the neighbour list was never rebuilt in {STEPS} steps");
+    assert!(
+        one.builds > 1,
+        "{name}: the neighbour list was never rebuilt in {STEPS} steps"
+    );
     for threads in [2, 3] {
         let other = run(&spec, threads);
         if let Some(k) = (0..STEPS as usize).find(|&k| one.observables[k] != other.observables[k]) {
-            panic!("{name}: observables differ first at step {} with {threads} threads: {:?} vs {:?}", k + 1, one.observables[k], other.observables[k]);
+            panic!(
+                "{name}: observables differ first at step {} with {threads} threads: {:?} vs {:?}",
+                k + 1,
+                one.observables[k],
+                other.observables[k]
+            );
         }
-        if let Some(i) = (0..one.positions.len()).find(|&i| one.positions[i] != other.positions[i] || one.velocities[i] != other.velocities[i]) {
+        if let Some(i) = (0..one.positions.len())
+            .find(|&i| one.positions[i] != other.positions[i] || one.velocities[i] != other.velocities[i])
+        {
             panic!("{name}: atom {i} differs with {threads} threads");
         }
         assert_eq!(one, other, "{name}: {threads} threads");
@@ -93,14 +108,27 @@ const LARGE: usize = 13_500;
 
 #[test]
 fn nve_many_slabs() {
-    check("NVE", spec(vec![Species::ReducedLJ], vec![LARGE], Thermostat::None, 0.8), 9, usize::MAX);
+    check(
+        "NVE",
+        spec(vec![Species::ReducedLJ], vec![LARGE], Thermostat::None, 0.8),
+        9,
+        usize::MAX,
+    );
 }
 
 #[test]
 fn stochastic_rescale_many_slabs() {
     check(
         "stochastic rescale",
-        spec(vec![Species::ReducedLJ], vec![LARGE], Thermostat::StochasticRescale { target: 1.3, tau: 0.1 }, 0.8),
+        spec(
+            vec![Species::ReducedLJ],
+            vec![LARGE],
+            Thermostat::StochasticRescale {
+                target: 1.3,
+                tau: 0.1,
+            },
+            0.8,
+        ),
         9,
         usize::MAX,
     );
@@ -108,7 +136,20 @@ fn stochastic_rescale_many_slabs() {
 
 #[test]
 fn langevin_many_slabs() {
-    check("Langevin", spec(vec![Species::ReducedLJ], vec![LARGE], Thermostat::Langevin { target: 1.3, gamma: 1.0 }, 0.8), 9, usize::MAX);
+    check(
+        "Langevin",
+        spec(
+            vec![Species::ReducedLJ],
+            vec![LARGE],
+            Thermostat::Langevin {
+                target: 1.3,
+                gamma: 1.0,
+            },
+            0.8,
+        ),
+        9,
+        usize::MAX,
+    );
 }
 
 #[test]
@@ -116,7 +157,15 @@ fn two_species_mixture_many_slabs() {
     // Argon–krypton: argon is the reference, krypton has larger σ and ε and mass (species table).
     check(
         "Ar-Kr mixture",
-        spec(vec![Species::Argon, Species::Krypton], vec![LARGE - 4000, 4000], Thermostat::Langevin { target: 1.0, gamma: 0.5 }, 0.8),
+        spec(
+            vec![Species::Argon, Species::Krypton],
+            vec![LARGE - 4000, 4000],
+            Thermostat::Langevin {
+                target: 1.0,
+                gamma: 0.5,
+            },
+            0.8,
+        ),
         9,
         usize::MAX,
     );
@@ -125,10 +174,23 @@ fn two_species_mixture_many_slabs() {
 #[test]
 fn small_box_single_slab() {
     // 256 atoms at ρ = 0.8: box edge 6.84 σ < 3 × 2.8 σ, so one slab and the all-pairs list path.
-    check("small NVE", spec(vec![Species::ReducedLJ], vec![256], Thermostat::None, 0.8), 1, 1);
+    check(
+        "small NVE",
+        spec(vec![Species::ReducedLJ], vec![256], Thermostat::None, 0.8),
+        1,
+        1,
+    );
     check(
         "small mixture",
-        spec(vec![Species::Argon, Species::Xenon], vec![200, 56], Thermostat::StochasticRescale { target: 1.0, tau: 0.2 }, 0.8),
+        spec(
+            vec![Species::Argon, Species::Xenon],
+            vec![200, 56],
+            Thermostat::StochasticRescale {
+                target: 1.0,
+                tau: 0.2,
+            },
+            0.8,
+        ),
         1,
         1,
     );

@@ -20,7 +20,11 @@ fn time_converts_fs_to_tau_and_back() {
     let r: f64 = f.text.parse().unwrap();
     assert!((r - 5.0 / tau_fs).abs() / r < 1e-4, "{r}");
     f.set_unit(&s, TimeUnit::Picoseconds);
-    assert!((f.text.parse::<f64>().unwrap() - 0.005).abs() < 1e-7, "{}", f.text);
+    assert!(
+        (f.text.parse::<f64>().unwrap() - 0.005).abs() < 1e-7,
+        "{}",
+        f.text
+    );
     f.set_unit(&s, TimeUnit::Femtoseconds);
     assert_eq!(f.text, "5");
 }
@@ -66,7 +70,10 @@ fn the_form_shows_converted_values_next_to_the_fields() {
     let mut h = harness(s);
     step_until(&mut h, 20, "the engine starts", |a| a.atoms() == 500);
     let shown = format!("= {} τ", noblescope::ui::unit_field::format_number(5.0 / tau_fs));
-    assert!(h.query_by_label(&shown).is_some(), "the timestep field shows {shown}");
+    assert!(
+        h.query_by_label(&shown).is_some(),
+        "the timestep field shows {shown}"
+    );
     // Picking τ in the timestep's unit picker converts the typed number.
     h.get_by_label("unit of Timestep").click();
     h.step();

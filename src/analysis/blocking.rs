@@ -19,11 +19,17 @@ pub struct Estimate {
 pub fn block_average(series: &[f64]) -> Estimate {
     let n = series.len();
     if n == 0 {
-        return Estimate { mean: f64::NAN, stderr: f64::NAN };
+        return Estimate {
+            mean: f64::NAN,
+            stderr: f64::NAN,
+        };
     }
     let mean = series.iter().sum::<f64>() / n as f64;
     if n < 2 {
-        return Estimate { mean, stderr: f64::NAN };
+        return Estimate {
+            mean,
+            stderr: f64::NAN,
+        };
     }
     let mut blocks: Vec<f64> = series.to_vec();
     let mut best = 0.0f64;
@@ -51,7 +57,12 @@ mod tests {
         let x: Vec<f64> = (0..1 << 14).map(|_| s.normal()).collect();
         let e = block_average(&x);
         let expected = 1.0 / (x.len() as f64).sqrt();
-        assert!((e.stderr / expected - 1.0).abs() < 0.25, "{} vs {}", e.stderr, expected);
+        assert!(
+            (e.stderr / expected - 1.0).abs() < 0.25,
+            "{} vs {}",
+            e.stderr,
+            expected
+        );
     }
 
     #[test]
@@ -69,6 +80,11 @@ mod tests {
             .collect();
         let e = block_average(&series);
         let expected = ((1.0 + phi) / (1.0 - phi)).sqrt() / (series.len() as f64).sqrt();
-        assert!((e.stderr / expected - 1.0).abs() < 0.3, "{} vs {}", e.stderr, expected);
+        assert!(
+            (e.stderr / expected - 1.0).abs() < 0.3,
+            "{} vs {}",
+            e.stderr,
+            expected
+        );
     }
 }

@@ -60,9 +60,17 @@ pub fn statistical_inefficiency(x: &[f64], fast: bool) -> Option<f64> {
 pub fn detect_equilibration(x: &[f64], stride: usize) -> Equilibration {
     let n = x.len();
     let stride = stride.max(1);
-    let mut best = Equilibration { start: 0, inefficiency: 1.0, effective_samples: 1.0 };
+    let mut best = Equilibration {
+        start: 0,
+        inefficiency: 1.0,
+        effective_samples: 1.0,
+    };
     if n < 2 {
-        return Equilibration { start: 0, inefficiency: 1.0, effective_samples: n as f64 };
+        return Equilibration {
+            start: 0,
+            inefficiency: 1.0,
+            effective_samples: n as f64,
+        };
     }
     // A constant series: pymbar's special case (start 0, g = 1, one effective sample).
     if x.iter().all(|&v| v == x[0]) {
@@ -74,7 +82,11 @@ pub fn detect_equilibration(x: &[f64], stride: usize) -> Equilibration {
         let g = statistical_inefficiency(&x[t0..], true).unwrap_or((n - t0 + 1) as f64);
         let neff = (n - t0 + 1) as f64 / g;
         if first || neff > best.effective_samples {
-            best = Equilibration { start: t0, inefficiency: g, effective_samples: neff };
+            best = Equilibration {
+                start: t0,
+                inefficiency: g,
+                effective_samples: neff,
+            };
             first = false;
         }
         t0 += stride;

@@ -5,6 +5,6 @@ pub mod blocking;
 pub mod equilibration;
 pub mod rdf;
 
-pub use blocking::{block_average, Estimate};
-pub use equilibration::{detect_equilibration, statistical_inefficiency, Equilibration};
+pub use blocking::{Estimate, block_average};
+pub use equilibration::{Equilibration, detect_equilibration, statistical_inefficiency};
 pub use rdf::{RadialDistribution, RdfPoint};

@@ -1,7 +1,7 @@
 //! The radial distribution function g(r), accumulated over configurations.
 
-use crate::physics::neighbours::separation;
 use crate::physics::Simulation;
+use crate::physics::neighbours::separation;
 use std::f64::consts::PI;
 
 /// A histogram of pair distances normalised to g(r): the ratio of the pair density at distance
@@ -29,7 +29,13 @@ pub struct RdfPoint {
 impl RadialDistribution {
     /// An empty histogram of `bins` bins up to `r_max`.
     pub fn new(r_max: f64, bins: usize) -> Self {
-        RadialDistribution { r_max, counts: vec![0; bins.max(1)], frames: 0, atoms: 0, volume: 0.0 }
+        RadialDistribution {
+            r_max,
+            counts: vec![0; bins.max(1)],
+            frames: 0,
+            atoms: 0,
+            volume: 0.0,
+        }
     }
 
     /// Upper edge of the histogram.
@@ -44,7 +50,12 @@ impl RadialDistribution {
 
     /// Adds one configuration given as positions in a cubic box of edge `l` and the unordered
     /// pairs to look at (every pair closer than `r_max` must be among them).
-    pub fn add_pairs(&mut self, positions: &[[f64; 3]], l: f64, pairs: impl IntoIterator<Item = (usize, usize)>) {
+    pub fn add_pairs(
+        &mut self,
+        positions: &[[f64; 3]],
+        l: f64,
+        pairs: impl IntoIterator<Item = (usize, usize)>,
+    ) {
         let bins = self.counts.len();
         let scale = bins as f64 / self.r_max;
         let r2_max = self.r_max * self.r_max;
@@ -87,7 +98,11 @@ impl RadialDistribution {
                 // Each unordered pair counted once: both atoms see it.
                 let per_atom = 2.0 * self.counts[k] as f64 / (self.frames as f64 * n);
                 running += per_atom;
-                RdfPoint { r: 0.5 * (lo + hi), g: per_atom / (rho * shell), coordination: running }
+                RdfPoint {
+                    r: 0.5 * (lo + hi),
+                    g: per_atom / (rho * shell),
+                    coordination: running,
+                }
             })
             .collect()
     }
@@ -106,7 +121,9 @@ mod tests {
         let mut rdf = RadialDistribution::new(4.0, 8);
         let mut s = Stream::new(9, Purpose::LatticeSites, 0, 0);
         for _ in 0..40 {
-            let pos: Vec<[f64; 3]> = (0..n).map(|_| [s.uniform() * l, s.uniform() * l, s.uniform() * l]).collect();
+            let pos: Vec<[f64; 3]> = (0..n)
+                .map(|_| [s.uniform() * l, s.uniform() * l, s.uniform() * l])
+                .collect();
             let pairs = (0..n).flat_map(|i| (i + 1..n).map(move |j| (i, j)));
             rdf.add_pairs(&pos, l, pairs);
         }
@@ -126,7 +143,11 @@ mod tests {
         rdf.add_pairs(&pos, 9.0, (0..n).flat_map(|i| (i + 1..n).map(move |j| (i, j))));
         let last = rdf.points().last().copied().unwrap();
         assert!((last.coordination - 12.0).abs() < 1e-9, "{last:?}");
-        let peak = rdf.points().into_iter().max_by(|x, y| x.g.total_cmp(&y.g)).unwrap();
+        let peak = rdf
+            .points()
+            .into_iter()
+            .max_by(|x, y| x.g.total_cmp(&y.g))
+            .unwrap();
         assert!((peak.r - a / 2f64.sqrt()).abs() < rdf.r_max() / 50.0, "{peak:?}");
     }
 }

@@ -97,5 +97,10 @@ pub fn measure_stages(atoms: usize, repeats: u32) -> StageTimes {
         sim.refresh_forces_only();
     }
     let force_seconds = t.elapsed().as_secs_f64() / repeats as f64;
-    StageTimes { atoms, build_seconds, force_seconds, pairs_per_atom: sim.neighbour_list().pairs() as f64 / atoms as f64 }
+    StageTimes {
+        atoms,
+        build_seconds,
+        force_seconds,
+        pairs_per_atom: sim.neighbour_list().pairs() as f64 / atoms as f64,
+    }
 }

@@ -5,8 +5,8 @@
 //! Both sides swap buffers instead of allocating, so steady-state frames allocate nothing.
 
 use crate::physics::{Simulation, Species};
-use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Mutex;
+use std::sync::atomic::{AtomicBool, Ordering};
 
 /// What the particle views draw: folded positions, species and per-atom kinetic energy.
 #[derive(Clone, Debug, Default, PartialEq)]
@@ -44,12 +44,17 @@ impl Frame {
         self.kinetic.clear();
         self.kinetic.extend((0..s.len()).map(|i| s.kinetic_of(i) as f32));
         self.speed.clear();
-        self.speed.extend(s.velocities.iter().map(|v| (v[0] * v[0] + v[1] * v[1] + v[2] * v[2]).sqrt() as f32));
+        self.speed.extend(
+            s.velocities
+                .iter()
+                .map(|v| (v[0] * v[0] + v[1] * v[1] + v[2] * v[2]).sqrt() as f32),
+        );
         self.kinds.clear();
         self.kinds.extend_from_slice(&s.kinds);
         let s0 = s.kinds[0].params().sigma_angstrom;
         self.sigmas.clear();
-        self.sigmas.extend(s.kinds.iter().map(|k| (k.params().sigma_angstrom / s0) as f32));
+        self.sigmas
+            .extend(s.kinds.iter().map(|k| (k.params().sigma_angstrom / s0) as f32));
     }
 
     /// Number of atoms.
@@ -73,7 +78,10 @@ pub struct FrameMailbox {
 impl FrameMailbox {
     /// A mailbox that wants its first frame.
     pub fn new() -> Self {
-        FrameMailbox { slot: Mutex::new((Frame::default(), false)), wanted: AtomicBool::new(true) }
+        FrameMailbox {
+            slot: Mutex::new((Frame::default(), false)),
+            wanted: AtomicBool::new(true),
+        }
     }
 
     /// Whether the reader has taken the last frame (the writer should make a new one).

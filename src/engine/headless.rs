@@ -49,20 +49,28 @@ impl RunError {
 }
 
 /// Files a run writes into its output folder.
-pub const OUTPUT_FILES: [&str; 5] = ["energy.csv", "summary.json", "final.checkpoint", "trajectory.xyz", "rdf.csv"];
+pub const OUTPUT_FILES: [&str; 5] = [
+    "energy.csv",
+    "summary.json",
+    "final.checkpoint",
+    "trajectory.xyz",
+    "rdf.csv",
+];
 
 /// Checks that `out` can take a run without destroying an earlier one.
 pub fn check_output_dir(out: &Path, overwrite: bool) -> Result<(), RunError> {
     if out.exists() && !out.is_dir() {
-        return Err(RunError::BadInput(format!("--out: {} exists and is not a folder; choose a folder", out.display())));
+        return Err(RunError::BadInput(format!(
+            "--out: {} exists and is not a folder; choose a folder",
+            out.display()
+        )));
     }
-    if !overwrite
-        && let Some(f) = OUTPUT_FILES.iter().find(|f| out.join(f).exists()) {
-            return Err(RunError::BadInput(format!(
-                "--out: {} already holds a run ({f}); choose another folder or pass --overwrite",
-                out.display()
-            )));
-        }
+    if !overwrite && let Some(f) = OUTPUT_FILES.iter().find(|f| out.join(f).exists()) {
+        return Err(RunError::BadInput(format!(
+            "--out: {} already holds a run ({f}); choose another folder or pass --overwrite",
+            out.display()
+        )));
+    }
     Ok(())
 }
 
@@ -73,27 +81,35 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
     let until = opts.until_step.unwrap_or(setup.steps);
     let start_step = session.simulation().step_count();
     if until <= start_step {
-        return Err(RunError::BadInput(format!("--steps: {until} is not past the saved step {start_step}; allowed: more than {start_step}")));
+        return Err(RunError::BadInput(format!(
+            "--steps: {until} is not past the saved step {start_step}; allowed: more than {start_step}"
+        )));
     }
     check_output_dir(&opts.out, opts.overwrite)?;
-    std::fs::create_dir_all(&opts.out).map_err(|e| RunError::BadInput(format!("--out: cannot create {}: {e}", opts.out.display())))?;
+    std::fs::create_dir_all(&opts.out)
+        .map_err(|e| RunError::BadInput(format!("--out: cannot create {}: {e}", opts.out.display())))?;
     let io_err = |what: &str, e: std::io::Error| RunError::Failed(format!("writing {what}: {e}"));
     let units = session.units();
     let csv = File::create(opts.out.join("energy.csv")).map_err(|e| io_err("energy.csv", e))?;
     let mut log = EnergyLog::new(BufWriter::new(csv), units).map_err(|e| io_err("energy.csv", e))?;
     let mut traj = match setup.trajectory_every {
-        Some(_) => Some(BufWriter::new(File::create(opts.out.join("trajectory.xyz")).map_err(|e| io_err("trajectory.xyz", e))?)),
+        Some(_) => Some(BufWriter::new(
+            File::create(opts.out.join("trajectory.xyz")).map_err(|e| io_err("trajectory.xyz", e))?,
+        )),
         None => None,
     };
     let mut samples: Vec<Observables> = Vec::new();
-    let mut rdf = setup.rdf_every.map(|_| RadialDistribution::new(session.simulation().spec().cutoff, RDF_BINS));
+    let mut rdf = setup
+        .rdf_every
+        .map(|_| RadialDistribution::new(session.simulation().spec().cutoff, RDF_BINS));
     if fresh {
         let o = session.observe();
         log.write(&o).map_err(|e| io_err("energy.csv", e))?;
         samples.push(o);
         if let Some(t) = traj.as_mut() {
             let sim = session.simulation();
-            trajectory::write_frame(t, sim.system(), &units, sim.step_count(), sim.time()).map_err(|e| io_err("trajectory.xyz", e))?;
+            trajectory::write_frame(t, sim.system(), &units, sim.step_count(), sim.time())
+                .map_err(|e| io_err("trajectory.xyz", e))?;
         }
     }
     let bar = progress_bar(until - start_step, opts.quiet);
@@ -110,7 +126,10 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
         if let Some(alarm) = out.alarm {
             match alarm {
                 super::protocol::Alarm::NonFinite { step, atoms } => {
-                    failure = Some(format!("non-finite energy at step {step}; atoms involved: {atoms:?}. Lower the timestep (now {:?}) or check the density.", setup.timestep));
+                    failure = Some(format!(
+                        "non-finite energy at step {step}; atoms involved: {atoms:?}. Lower the timestep (now {:?}) or check the density.",
+                        setup.timestep
+                    ));
                     break;
                 }
                 other => warnings.push(other.describe()),
@@ -118,14 +137,18 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
         }
         let step = session.simulation().step_count();
         if let (Some(t), Some(k)) = (traj.as_mut(), setup.trajectory_every)
-            && step.is_multiple_of(k) {
-                let sim = session.simulation();
-                trajectory::write_frame(t, sim.system(), &units, step, sim.time()).map_err(|e| io_err("trajectory.xyz", e))?;
-            }
+            && step.is_multiple_of(k)
+        {
+            let sim = session.simulation();
+            trajectory::write_frame(t, sim.system(), &units, step, sim.time())
+                .map_err(|e| io_err("trajectory.xyz", e))?;
+        }
         if let (Some(g), Some(k)) = (rdf.as_mut(), setup.rdf_every)
-            && step.is_multiple_of(k) && step >= setup.equilibration_steps {
-                g.add(session.simulation());
-            }
+            && step.is_multiple_of(k)
+            && step >= setup.equilibration_steps
+        {
+            g.add(session.simulation());
+        }
         if step.is_multiple_of(64) {
             bar.set_position(step - start_step);
         }
@@ -145,7 +168,10 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
     if let Some(g) = &rdf {
         std::fs::write(opts.out.join("rdf.csv"), rdf_csv(g, &units)).map_err(|e| io_err("rdf.csv", e))?;
     }
-    session.checkpoint().save(&opts.out.join("final.checkpoint")).map_err(|e| RunError::Failed(e.to_string()))?;
+    session
+        .checkpoint()
+        .save(&opts.out.join("final.checkpoint"))
+        .map_err(|e| RunError::Failed(e.to_string()))?;
     let sim = session.simulation();
     let summary = Summary::new(
         &samples,
@@ -163,7 +189,8 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
             threads: opts.threads,
         },
     );
-    std::fs::write(opts.out.join("summary.json"), summary.to_json()).map_err(|e| io_err("summary.json", e))?;
+    std::fs::write(opts.out.join("summary.json"), summary.to_json())
+        .map_err(|e| io_err("summary.json", e))?;
     Ok(summary)
 }
 
@@ -173,10 +200,20 @@ pub const RDF_BINS: usize = 200;
 /// g(r) as CSV: r in σ (and Å for real species), g, running coordination number.
 pub fn rdf_csv(g: &RadialDistribution, units: &crate::physics::UnitSystem) -> String {
     let real = units.has_real_units();
-    let mut out = String::from(if real { "r [sigma],r [angstrom],g [1],coordination [1]\n" } else { "r [sigma],g [1],coordination [1]\n" });
+    let mut out = String::from(if real {
+        "r [sigma],r [angstrom],g [1],coordination [1]\n"
+    } else {
+        "r [sigma],g [1],coordination [1]\n"
+    });
     for p in g.points() {
         if real {
-            out.push_str(&format!("{:.5},{:.5},{:.6},{:.6}\n", p.r, p.r * units.sigma_angstrom(), p.g, p.coordination));
+            out.push_str(&format!(
+                "{:.5},{:.5},{:.6},{:.6}\n",
+                p.r,
+                p.r * units.sigma_angstrom(),
+                p.g,
+                p.coordination
+            ));
         } else {
             out.push_str(&format!("{:.5},{:.6},{:.6}\n", p.r, p.g, p.coordination));
         }
@@ -198,7 +235,8 @@ fn progress_bar(len: u64, quiet: bool) -> ProgressBar {
     }
     let bar = ProgressBar::with_draw_target(Some(len), ProgressDrawTarget::stderr());
     bar.set_style(
-        ProgressStyle::with_template("{bar:40} {pos}/{len} steps  {per_sec}  {eta} left").unwrap_or_else(|_| ProgressStyle::default_bar()),
+        ProgressStyle::with_template("{bar:40} {pos}/{len} steps  {per_sec}  {eta} left")
+            .unwrap_or_else(|_| ProgressStyle::default_bar()),
     );
     bar
 }

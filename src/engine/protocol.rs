@@ -22,9 +22,17 @@ pub enum Command {
     /// Change the timestep of the running simulation.
     SetTimestep(Duration),
     /// Change cutoff, skin, potential mode and tail correction of the running simulation.
-    SetInteraction { cutoff: Length, skin: Length, potential: PotentialMode, tail_correction: bool },
+    SetInteraction {
+        cutoff: Length,
+        skin: Length,
+        potential: PotentialMode,
+        tail_correction: bool,
+    },
     /// Change the ensemble and thermostat target of the running simulation.
-    SetThermostat { ensemble: Ensemble, temperature: Temperature },
+    SetThermostat {
+        ensemble: Ensemble,
+        temperature: Temperature,
+    },
     /// Write a checkpoint of the present state.
     SaveCheckpoint(PathBuf),
     /// Replace the simulation with one continued from a checkpoint.
@@ -34,7 +42,11 @@ pub enum Command {
     /// Scan timesteps (τ) and cutoffs (σ) from the present state, each trial `duration` τ long,
     /// on copies: the user's simulation is not advanced. The scan runs beside the engine loop
     /// and answers with [`Event::Tuned`]; one scan at a time.
-    Tune { timesteps: Vec<f64>, cutoffs: Vec<f64>, duration: f64 },
+    Tune {
+        timesteps: Vec<f64>,
+        cutoffs: Vec<f64>,
+        duration: f64,
+    },
     /// Stop the running tuning scan (within 1/200 of a trial); answered with
     /// [`Event::TuneCancelled`], or refused if no scan runs.
     CancelTune,
@@ -48,7 +60,11 @@ pub enum Alarm {
     /// Energy or forces became non-finite.
     NonFinite { step: u64, atoms: Vec<usize> },
     /// Some atom feels a force beyond the limit: atoms overlap, the run is about to explode.
-    HugeForce { step: u64, force: f64, atoms: Vec<usize> },
+    HugeForce {
+        step: u64,
+        force: f64,
+        atoms: Vec<usize>,
+    },
     /// The conserved energy drifted beyond the limit since the start.
     Drift { step: u64, drift: f64, limit: f64 },
 }
@@ -64,9 +80,17 @@ impl Alarm {
     /// One sentence for people.
     pub fn describe(&self) -> String {
         match self {
-            Alarm::NonFinite { step, atoms } => format!("step {step}: energy is no longer finite (atoms {atoms:?}); the run blew up. Rewind and lower the timestep."),
-            Alarm::HugeForce { step, force, atoms } => format!("step {step}: force {force:.3e} ε/σ on atoms {atoms:?}: atoms overlap. Rewind and lower the timestep."),
-            Alarm::Drift { step, drift, limit } => format!("step {step}: conserved energy drifted by {:.3}% (limit {:.3}%). Lower the timestep or use ShiftedForce.", drift * 100.0, limit * 100.0),
+            Alarm::NonFinite { step, atoms } => format!(
+                "step {step}: energy is no longer finite (atoms {atoms:?}); the run blew up. Rewind and lower the timestep."
+            ),
+            Alarm::HugeForce { step, force, atoms } => format!(
+                "step {step}: force {force:.3e} ε/σ on atoms {atoms:?}: atoms overlap. Rewind and lower the timestep."
+            ),
+            Alarm::Drift { step, drift, limit } => format!(
+                "step {step}: conserved energy drifted by {:.3}% (limit {:.3}%). Lower the timestep or use ShiftedForce.",
+                drift * 100.0,
+                limit * 100.0
+            ),
         }
     }
 }
@@ -154,18 +178,30 @@ pub struct TuneUnits {
 
 impl TuneUnits {
     /// Reduced units throughout.
-    pub const REDUCED: TuneUnits = TuneUnits { timestep: (1.0, "τ"), duration: (1.0, "τ"), length: (1.0, "σ") };
+    pub const REDUCED: TuneUnits = TuneUnits {
+        timestep: (1.0, "τ"),
+        duration: (1.0, "τ"),
+        length: (1.0, "σ"),
+    };
 }
 
 /// Checks a tuning request (reduced values) against `spec`: every timestep positive, finite and
 /// within [`TUNE_TIMESTEP_RANGE`], every cutoff within [`TUNE_CUTOFF_RANGE`] with cutoff + skin
 /// at most half the box, a duration in (0, [`TUNE_MAX_DURATION`]]. The error names the field,
 /// the value and the allowed range, in `units`.
-pub fn check_tune_request(spec: &SimulationSpec, timesteps: &[f64], cutoffs: &[f64], duration: f64, units: TuneUnits) -> Result<(), String> {
+pub fn check_tune_request(
+    spec: &SimulationSpec,
+    timesteps: &[f64],
+    cutoffs: &[f64],
+    duration: f64,
+    units: TuneUnits,
+) -> Result<(), String> {
     let fmt = |v: f64, (f, u): (f64, &str)| format!("{} {u}", short_number(v * f));
     let count = |field: &str, n: usize| {
         if n == 0 || n > TUNE_MAX_VALUES {
-            Err(format!("{field}: {n} values is out of range; allowed: 1 to {TUNE_MAX_VALUES} values"))
+            Err(format!(
+                "{field}: {n} values is out of range; allowed: 1 to {TUNE_MAX_VALUES} values"
+            ))
         } else {
             Ok(())
         }
@@ -173,12 +209,21 @@ pub fn check_tune_request(spec: &SimulationSpec, timesteps: &[f64], cutoffs: &[f
     count("timesteps", timesteps.len())?;
     count("cutoffs", cutoffs.len())?;
     if !(duration > 0.0 && duration.is_finite() && duration <= TUNE_MAX_DURATION) {
-        return Err(format!("duration: {} is out of range; allowed: more than 0 and at most {}", fmt(duration, units.duration), fmt(TUNE_MAX_DURATION, units.duration)));
+        return Err(format!(
+            "duration: {} is out of range; allowed: more than 0 and at most {}",
+            fmt(duration, units.duration),
+            fmt(TUNE_MAX_DURATION, units.duration)
+        ));
     }
     let (lo, hi) = TUNE_TIMESTEP_RANGE;
     for &dt in timesteps {
         if !(dt.is_finite() && (lo..=hi).contains(&dt)) {
-            return Err(format!("timesteps: {} is out of range; allowed: {} to {}", fmt(dt, units.timestep), fmt(lo, units.timestep), fmt(hi, units.timestep)));
+            return Err(format!(
+                "timesteps: {} is out of range; allowed: {} to {}",
+                fmt(dt, units.timestep),
+                fmt(lo, units.timestep),
+                fmt(hi, units.timestep)
+            ));
         }
         let steps = duration / dt;
         if steps > TUNE_MAX_STEPS {
@@ -216,7 +261,6 @@ pub fn check_tune_request(spec: &SimulationSpec, timesteps: &[f64], cutoffs: &[f
     }
     Ok(())
 }
-
 
 /// A number rounded to five significant digits, without trailing zeros.
 fn short_number(v: f64) -> String {

@@ -18,7 +18,11 @@ impl RewindBuffer {
     /// A buffer for `atoms` atoms: up to 8 snapshots within [`MEMORY_BUDGET_BYTES`].
     pub fn new(atoms: usize, every: u64) -> Self {
         let per = 73 * atoms.max(1) + 256;
-        RewindBuffer { every: every.max(1), capacity: (MEMORY_BUDGET_BYTES / per).clamp(1, 8), snapshots: VecDeque::new() }
+        RewindBuffer {
+            every: every.max(1),
+            capacity: (MEMORY_BUDGET_BYTES / per).clamp(1, 8),
+            snapshots: VecDeque::new(),
+        }
     }
 
     /// Whether a snapshot is due at `step`.

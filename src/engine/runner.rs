@@ -5,16 +5,16 @@
 //! never waits for drawing: it fills a frame only when the last one was taken.
 
 use super::frame::{Frame, FrameMailbox};
-use super::protocol::{check_tune_request, Alarm, Command, Event, Status, TuneUnits, TuningReport};
+use super::protocol::{Alarm, Command, Event, Status, TuneUnits, TuningReport, check_tune_request};
 use super::rewind::RewindBuffer;
 use super::session::Session;
 use super::tuning;
 use crate::io::checkpoint::Checkpoint;
 use crate::io::setup::{Setup, SetupError};
 use crate::physics::{SimulationSpec, SimulationState};
+use std::sync::Arc;
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::mpsc::{self, Receiver, RecvTimeoutError, Sender, TryRecvError};
-use std::sync::Arc;
 use std::thread::JoinHandle;
 use std::time::{Duration, Instant};
 
@@ -52,7 +52,12 @@ impl EngineHandle {
             .name("noblescope-engine".into())
             .spawn(move || Engine::new(crx, etx, mailbox, wake).run(setup))
             .expect("the engine thread starts");
-        Ok(EngineHandle { commands: ctx, events: erx, frames, thread: Some(thread) })
+        Ok(EngineHandle {
+            commands: ctx,
+            events: erx,
+            frames,
+            thread: Some(thread),
+        })
     }
 
     /// Sends a command (ignored if the engine has stopped).
@@ -111,27 +116,48 @@ struct TuneJob {
 }
 
 impl TuneJob {
-    fn start(spec: SimulationSpec, state: SimulationState, timesteps: Vec<f64>, cutoffs: Vec<f64>, duration: f64) -> std::io::Result<TuneJob> {
+    fn start(
+        spec: SimulationSpec,
+        state: SimulationState,
+        timesteps: Vec<f64>,
+        cutoffs: Vec<f64>,
+        duration: f64,
+    ) -> std::io::Result<TuneJob> {
         let (tx, rx) = mpsc::channel();
         let cancel = Arc::new(AtomicBool::new(false));
         let stop = cancel.clone();
-        let thread = std::thread::Builder::new().name("noblescope-tune".into()).spawn(move || {
-            let scan = || tuning::full_scan(spec, state, &timesteps, &cutoffs, duration, &stop);
-            // The scan runs on this thread alone, beside the engine: in the shared force pool
-            // each parallel loop of a trial would queue behind the engine's batches of steps.
-            // Results do not depend on the thread count.
-            let result = match rayon::ThreadPoolBuilder::new().num_threads(1).use_current_thread().build() {
-                Ok(pool) => pool.install(scan),
-                Err(_) => scan(),
-            };
-            let _ = tx.send(result);
-        })?;
-        Ok(TuneJob { result: rx, cancel, thread })
+        let thread = std::thread::Builder::new()
+            .name("noblescope-tune".into())
+            .spawn(move || {
+                let scan = || tuning::full_scan(spec, state, &timesteps, &cutoffs, duration, &stop);
+                // The scan runs on this thread alone, beside the engine: in the shared force pool
+                // each parallel loop of a trial would queue behind the engine's batches of steps.
+                // Results do not depend on the thread count.
+                let result = match rayon::ThreadPoolBuilder::new()
+                    .num_threads(1)
+                    .use_current_thread()
+                    .build()
+                {
+                    Ok(pool) => pool.install(scan),
+                    Err(_) => scan(),
+                };
+                let _ = tx.send(result);
+            })?;
+        Ok(TuneJob {
+            result: rx,
+            cancel,
+            thread,
+        })
     }
 }
 
 impl Engine {
-    fn new(commands: Receiver<Command>, events: Sender<Event>, frames: Arc<FrameMailbox>, wake: Option<Box<dyn Fn() + Send>>) -> Self {
+    fn new(
+        commands: Receiver<Command>,
+        events: Sender<Event>,
+        frames: Arc<FrameMailbox>,
+        wake: Option<Box<dyn Fn() + Send>>,
+    ) -> Self {
         Engine {
             commands,
             events,
@@ -161,7 +187,10 @@ impl Engine {
         }
         match outcome {
             Ok(report) => self.emit(Event::Tuned(report)),
-            Err(reason) => self.emit(Event::Rejected { command: "Tune".into(), reason }),
+            Err(reason) => self.emit(Event::Rejected {
+                command: "Tune".into(),
+                reason,
+            }),
         }
     }
 
@@ -183,7 +212,10 @@ impl Engine {
         self.rewind = RewindBuffer::new(session.simulation().system().len(), SNAPSHOT_EVERY);
         self.rewind.push(session.simulation().state());
         self.last_alarm = None;
-        self.emit(Event::Started { setup: Box::new(session.setup().clone()), atoms: session.simulation().system().len() });
+        self.emit(Event::Started {
+            setup: Box::new(session.setup().clone()),
+            atoms: session.simulation().system().len(),
+        });
         self.emit(Event::Sample(session.observe()));
         self.publish_frame(session, true);
     }
@@ -192,7 +224,10 @@ impl Engine {
         let mut session = match Session::new(setup) {
             Ok(s) => s,
             Err(e) => {
-                self.emit(Event::Rejected { command: "start".into(), reason: e.to_string() });
+                self.emit(Event::Rejected {
+                    command: "start".into(),
+                    reason: e.to_string(),
+                });
                 return;
             }
         };
@@ -272,7 +307,11 @@ impl Engine {
     fn send_status(&mut self, session: &Session) {
         let dt = self.rate_since.elapsed().as_secs_f64();
         if dt > 0.2 || !self.running {
-            self.steps_per_second = if self.running && dt > 0.0 { self.rate_steps as f64 / dt } else { self.steps_per_second * self.running as u8 as f64 };
+            self.steps_per_second = if self.running && dt > 0.0 {
+                self.rate_steps as f64 / dt
+            } else {
+                self.steps_per_second * self.running as u8 as f64
+            };
             self.rate_steps = 0;
             self.rate_since = Instant::now();
         }
@@ -293,7 +332,11 @@ impl Engine {
 
     /// Handles one command; returns false to stop the thread.
     fn handle(&mut self, c: Command, session: &mut Session) -> bool {
-        let name = format!("{c:?}").split(['(', ' ', '{']).next().unwrap_or("command").to_string();
+        let name = format!("{c:?}")
+            .split(['(', ' ', '{'])
+            .next()
+            .unwrap_or("command")
+            .to_string();
         let result: Result<(), String> = match c {
             Command::Shutdown => return false,
             Command::Run => {
@@ -339,10 +382,20 @@ impl Engine {
                 Err(e) => Err(e.to_string()),
             },
             Command::SetTimestep(dt) => session.set_timestep(dt).map_err(|e| e.to_string()),
-            Command::SetInteraction { cutoff, skin, potential, tail_correction } => {
-                session.set_interaction(cutoff, skin, potential, tail_correction).map_err(|e| e.to_string())
-            }
-            Command::SetThermostat { ensemble, temperature } => session.set_thermostat(ensemble, temperature).map_err(|e| e.to_string()),
+            Command::SetInteraction {
+                cutoff,
+                skin,
+                potential,
+                tail_correction,
+            } => session
+                .set_interaction(cutoff, skin, potential, tail_correction)
+                .map_err(|e| e.to_string()),
+            Command::SetThermostat {
+                ensemble,
+                temperature,
+            } => session
+                .set_thermostat(ensemble, temperature)
+                .map_err(|e| e.to_string()),
             Command::SaveCheckpoint(path) => match session.checkpoint().save(&path) {
                 Ok(()) => {
                     self.emit(Event::Saved(path));
@@ -350,7 +403,10 @@ impl Engine {
                 }
                 Err(e) => Err(e.to_string()),
             },
-            Command::LoadCheckpoint(path) => match Checkpoint::load(&path).map_err(|e| e.to_string()).and_then(|c| Session::from_checkpoint(c).map_err(|e| e.to_string())) {
+            Command::LoadCheckpoint(path) => match Checkpoint::load(&path)
+                .map_err(|e| e.to_string())
+                .and_then(|c| Session::from_checkpoint(c).map_err(|e| e.to_string()))
+            {
                 Ok(s) => {
                     *session = s;
                     self.running = false;
@@ -360,7 +416,11 @@ impl Engine {
                 Err(e) => Err(e),
             },
             Command::Rewind => {
-                let before = self.last_alarm.as_ref().map(|a| a.step()).unwrap_or(session.simulation().step_count() + 1);
+                let before = self
+                    .last_alarm
+                    .as_ref()
+                    .map(|a| a.step())
+                    .unwrap_or(session.simulation().step_count() + 1);
                 match self.rewind.rewind_before(before) {
                     Some(state) => {
                         let spec = session.simulation().spec().clone();
@@ -369,7 +429,10 @@ impl Engine {
                                 *session.simulation_mut() = sim;
                                 self.running = false;
                                 self.last_alarm = None;
-                                self.emit(Event::Rewound { step: session.simulation().step_count(), time: session.simulation().time() });
+                                self.emit(Event::Rewound {
+                                    step: session.simulation().step_count(),
+                                    time: session.simulation().time(),
+                                });
                                 self.emit(Event::Sample(session.observe()));
                                 self.publish_frame(session, true);
                                 Ok(())
@@ -389,18 +452,28 @@ impl Engine {
                     Err("no tuning scan is running".into())
                 }
             }
-            Command::Tune { timesteps, cutoffs, duration } => {
+            Command::Tune {
+                timesteps,
+                cutoffs,
+                duration,
+            } => {
                 let sim = session.simulation();
                 if self.tune.is_some() {
-                    Err("a tuning scan is already running; wait for its results before starting another".into())
+                    Err(
+                        "a tuning scan is already running; wait for its results before starting another"
+                            .into(),
+                    )
                 } else if matches!(self.last_alarm, Some(Alarm::NonFinite { .. })) {
                     Err("the run blew up; rewind or reset before tuning".into())
                 } else {
-                    check_tune_request(sim.spec(), &timesteps, &cutoffs, duration, TuneUnits::REDUCED).and_then(|()| {
-                        let job = TuneJob::start(sim.spec().clone(), sim.state(), timesteps, cutoffs, duration).map_err(|e| format!("could not start the tuning scan: {e}"))?;
-                        self.tune = Some(job);
-                        Ok(())
-                    })
+                    check_tune_request(sim.spec(), &timesteps, &cutoffs, duration, TuneUnits::REDUCED)
+                        .and_then(|()| {
+                            let job =
+                                TuneJob::start(sim.spec().clone(), sim.state(), timesteps, cutoffs, duration)
+                                    .map_err(|e| format!("could not start the tuning scan: {e}"))?;
+                            self.tune = Some(job);
+                            Ok(())
+                        })
                 }
             }
         };
@@ -410,7 +483,10 @@ impl Engine {
                     self.emit(Event::SetupChanged(Box::new(session.setup().clone())));
                 }
             }
-            Err(reason) => self.emit(Event::Rejected { command: name, reason }),
+            Err(reason) => self.emit(Event::Rejected {
+                command: name,
+                reason,
+            }),
         }
         self.send_status(session);
         true

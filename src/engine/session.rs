@@ -28,7 +28,11 @@ impl Session {
     pub fn new(setup: Setup) -> Result<Session, SetupError> {
         let spec = setup.resolve()?;
         let sim = Simulation::new(spec)?;
-        Ok(Session { setup, sim, watchdog: Watchdog::default() })
+        Ok(Session {
+            setup,
+            sim,
+            watchdog: Watchdog::default(),
+        })
     }
 
     /// Continues from a checkpoint.
@@ -36,7 +40,11 @@ impl Session {
         // The setup must still be valid; the saved spec carries any live changes.
         c.setup.resolve()?;
         let sim = Simulation::from_state(c.spec, c.state)?;
-        Ok(Session { setup: c.setup, sim, watchdog: Watchdog::default() })
+        Ok(Session {
+            setup: c.setup,
+            sim,
+            watchdog: Watchdog::default(),
+        })
     }
 
     /// The setup, including live changes.
@@ -61,7 +69,11 @@ impl Session {
 
     /// A checkpoint of the present state.
     pub fn checkpoint(&self) -> Checkpoint {
-        Checkpoint { setup: self.setup.clone(), spec: self.sim.spec().clone(), state: self.sim.state() }
+        Checkpoint {
+            setup: self.setup.clone(),
+            spec: self.sim.spec().clone(),
+            state: self.sim.state(),
+        }
     }
 
     /// The sample of the present state.
@@ -72,7 +84,10 @@ impl Session {
     /// Takes one step; samples and checks at multiples of `sample_every`.
     pub fn step(&mut self) -> StepOutcome {
         if let Err(b) = self.sim.step() {
-            return StepOutcome { sample: None, alarm: Some(Watchdog::blowup(&b)) };
+            return StepOutcome {
+                sample: None,
+                alarm: Some(Watchdog::blowup(&b)),
+            };
         }
         let mut out = StepOutcome::default();
         if self.sim.step_count().is_multiple_of(self.setup.sample_every) {
@@ -94,14 +109,21 @@ impl Session {
     }
 
     /// Changes cutoff, skin, potential mode and tail correction.
-    pub fn set_interaction(&mut self, cutoff: Length, skin: Length, potential: PotentialMode, tail_correction: bool) -> Result<(), SetupError> {
+    pub fn set_interaction(
+        &mut self,
+        cutoff: Length,
+        skin: Length,
+        potential: PotentialMode,
+        tail_correction: bool,
+    ) -> Result<(), SetupError> {
         let mut setup = self.setup.clone();
         setup.cutoff = cutoff;
         setup.skin = skin;
         setup.potential = potential;
         setup.tail_correction = tail_correction;
         let spec = setup.resolve()?;
-        self.sim.set_interaction(spec.cutoff, spec.skin, spec.potential, spec.tail_correction)?;
+        self.sim
+            .set_interaction(spec.cutoff, spec.skin, spec.potential, spec.tail_correction)?;
         self.setup = setup;
         Ok(())
     }

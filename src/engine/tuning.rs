@@ -3,8 +3,8 @@
 
 use super::protocol::TuningReport;
 use crate::physics::{PotentialMode, Simulation, SimulationSpec, SimulationState, Thermostat};
-use std::sync::atomic::{AtomicBool, Ordering};
 use serde::Serialize;
+use std::sync::atomic::{AtomicBool, Ordering};
 
 /// How one timestep fared over a short constant-energy run.
 #[derive(Clone, Debug, PartialEq, Serialize)]
@@ -47,7 +47,13 @@ pub const FLUCTUATION_LIMIT: f64 = 0.05;
 
 /// Runs constant-energy dynamics from `state` for `duration` τ at each timestep. Once `stop` is
 /// set (checked every 1/200 of a trial) the rows are cut short and mean nothing.
-pub fn timestep_scan(spec: &SimulationSpec, state: &SimulationState, timesteps: &[f64], duration: f64, stop: &AtomicBool) -> Vec<TimestepRow> {
+pub fn timestep_scan(
+    spec: &SimulationSpec,
+    state: &SimulationState,
+    timesteps: &[f64],
+    duration: f64,
+    stop: &AtomicBool,
+) -> Vec<TimestepRow> {
     timesteps
         .iter()
         .map(|&dt| {
@@ -58,7 +64,14 @@ pub fn timestep_scan(spec: &SimulationSpec, state: &SimulationState, timesteps: 
             st.heat = 0.0;
             let steps = ((duration / dt).round() as u64).max(10);
             let every = (steps / 200).max(1);
-            let mut row = TimestepRow { timestep: dt, steps, drift_per_atom_per_tau: f64::NAN, relative_drift: f64::NAN, fluctuation_ratio: f64::NAN, blew_up: false };
+            let mut row = TimestepRow {
+                timestep: dt,
+                steps,
+                drift_per_atom_per_tau: f64::NAN,
+                relative_drift: f64::NAN,
+                fluctuation_ratio: f64::NAN,
+                blew_up: false,
+            };
             let Ok(mut sim) = Simulation::from_state(s, st) else {
                 row.blew_up = true;
                 return row;
@@ -95,13 +108,21 @@ pub fn timestep_scan(spec: &SimulationSpec, state: &SimulationState, timesteps: 
 
 /// Largest timestep whose run did not blow up and stayed under [`FLUCTUATION_LIMIT`].
 pub fn recommended_timestep(rows: &[TimestepRow]) -> Option<f64> {
-    rows.iter().filter(|r| !r.blew_up && r.fluctuation_ratio <= FLUCTUATION_LIMIT).map(|r| r.timestep).fold(None, |a, b| Some(a.map_or(b, |a: f64| a.max(b))))
+    rows.iter()
+        .filter(|r| !r.blew_up && r.fluctuation_ratio <= FLUCTUATION_LIMIT)
+        .map(|r| r.timestep)
+        .fold(None, |a, b| Some(a.map_or(b, |a: f64| a.max(b))))
 }
 
 /// Evaluates energy and pressure at each cutoff for each configuration and averages them, as
 /// the chosen mode reports them and as estimates of the full potential.
 /// Cutoffs whose cutoff + skin exceeds half the box are left out.
-pub fn cutoff_scan(spec: &SimulationSpec, states: &[SimulationState], cutoffs: &[f64], mode: PotentialMode) -> Vec<CutoffRow> {
+pub fn cutoff_scan(
+    spec: &SimulationSpec,
+    states: &[SimulationState],
+    cutoffs: &[f64],
+    mode: PotentialMode,
+) -> Vec<CutoffRow> {
     let mut rows = Vec::new();
     for &rc in cutoffs {
         let mut acc = [0.0; 4];
@@ -116,7 +137,10 @@ pub fn cutoff_scan(spec: &SimulationSpec, states: &[SimulationState], cutoffs: &
                 break;
             };
             let bare = sim.observe();
-            if sim.set_interaction(rc, spec.skin, PotentialMode::Truncated, true).is_err() {
+            if sim
+                .set_interaction(rc, spec.skin, PotentialMode::Truncated, true)
+                .is_err()
+            {
                 ok = false;
                 break;
             }
@@ -128,7 +152,13 @@ pub fn cutoff_scan(spec: &SimulationSpec, states: &[SimulationState], cutoffs: &
         }
         if ok && !states.is_empty() {
             let n = states.len() as f64;
-            rows.push(CutoffRow { cutoff: rc, potential: acc[0] / n, potential_full_estimate: acc[1] / n, pressure: acc[2] / n, pressure_full_estimate: acc[3] / n });
+            rows.push(CutoffRow {
+                cutoff: rc,
+                potential: acc[0] / n,
+                potential_full_estimate: acc[1] / n,
+                pressure: acc[2] / n,
+                pressure_full_estimate: acc[3] / n,
+            });
         }
     }
     rows
@@ -138,8 +168,21 @@ pub fn cutoff_scan(spec: &SimulationSpec, states: &[SimulationState], cutoffs: &
 /// over `state` and further configurations taken [`TUNE_STEPS_APART`] steps apart on a copy
 /// (the caller's simulation is not touched). `stop` ends the scan with an error within a
 /// fraction of a trial.
-pub fn full_scan(spec: SimulationSpec, state: SimulationState, timesteps: &[f64], cutoffs: &[f64], duration: f64, stop: &AtomicBool) -> Result<TuningReport, String> {
-    let stopped = || if stop.load(Ordering::Relaxed) { Err("the engine stopped".to_string()) } else { Ok(()) };
+pub fn full_scan(
+    spec: SimulationSpec,
+    state: SimulationState,
+    timesteps: &[f64],
+    cutoffs: &[f64],
+    duration: f64,
+    stop: &AtomicBool,
+) -> Result<TuningReport, String> {
+    let stopped = || {
+        if stop.load(Ordering::Relaxed) {
+            Err("the engine stopped".to_string())
+        } else {
+            Ok(())
+        }
+    };
     let from_step = state.step;
     let mut rows = Vec::with_capacity(timesteps.len());
     for &dt in timesteps {
@@ -159,7 +202,11 @@ pub fn full_scan(spec: SimulationSpec, state: SimulationState, timesteps: &[f64]
     }
     let crows = cutoff_scan(&spec, &states, cutoffs, spec.potential);
     if let Some(&missing) = cutoffs.iter().find(|&&rc| !crows.iter().any(|r| r.cutoff == rc)) {
-        return Err(format!("cutoffs: {missing} σ could not be evaluated; allowed: cutoff + skin ({} σ) at most half the box ({:.4} σ)", spec.skin, 0.5 * spec.box_length()));
+        return Err(format!(
+            "cutoffs: {missing} σ could not be evaluated; allowed: cutoff + skin ({} σ) at most half the box ({:.4} σ)",
+            spec.skin,
+            0.5 * spec.box_length()
+        ));
     }
     Ok(TuningReport {
         from_step,
@@ -203,8 +250,20 @@ mod tests {
 
     #[test]
     fn recommendation_skips_blow_ups_and_noisy_steps() {
-        let row = |dt, ratio, blew_up| TimestepRow { timestep: dt, steps: 1, drift_per_atom_per_tau: 0.0, relative_drift: 0.0, fluctuation_ratio: ratio, blew_up };
-        let rows = [row(0.002, 0.01, false), row(0.005, 0.03, false), row(0.01, 0.2, false), row(0.02, f64::NAN, true)];
+        let row = |dt, ratio, blew_up| TimestepRow {
+            timestep: dt,
+            steps: 1,
+            drift_per_atom_per_tau: 0.0,
+            relative_drift: 0.0,
+            fluctuation_ratio: ratio,
+            blew_up,
+        };
+        let rows = [
+            row(0.002, 0.01, false),
+            row(0.005, 0.03, false),
+            row(0.01, 0.2, false),
+            row(0.02, f64::NAN, true),
+        ];
         assert_eq!(recommended_timestep(&rows), Some(0.005));
     }
 }

@@ -101,7 +101,10 @@ impl Checkpoint {
 
     /// Decodes from bytes; `file` names the source in errors.
     pub fn from_bytes(bytes: &[u8], file: &str) -> Result<Checkpoint, CheckpointError> {
-        let bad = |m: &str| CheckpointError::Format { file: file.into(), message: m.into() };
+        let bad = |m: &str| CheckpointError::Format {
+            file: file.into(),
+            message: m.into(),
+        };
         if bytes.len() < MAGIC.len() + 16 || &bytes[..MAGIC.len()] != MAGIC {
             return Err(bad("missing header"));
         }
@@ -128,10 +131,17 @@ impl Checkpoint {
             at += bytes;
             part
         };
-        let positions = triples(take(24 * n), |b| f64::from_bits(u64::from_le_bytes(b.try_into().unwrap())));
-        let velocities = triples(take(24 * n), |b| f64::from_bits(u64::from_le_bytes(b.try_into().unwrap())));
-        let list_reference = triples(take(12 * n), |b| f32::from_bits(u32::from_le_bytes(b.try_into().unwrap())));
-        let setup = Setup::parse(&header.setup_ron, &format!("{file} (embedded setup)")).map_err(|e| bad(&e.to_string()))?;
+        let positions = triples(take(24 * n), |b| {
+            f64::from_bits(u64::from_le_bytes(b.try_into().unwrap()))
+        });
+        let velocities = triples(take(24 * n), |b| {
+            f64::from_bits(u64::from_le_bytes(b.try_into().unwrap()))
+        });
+        let list_reference = triples(take(12 * n), |b| {
+            f32::from_bits(u32::from_le_bytes(b.try_into().unwrap()))
+        });
+        let setup = Setup::parse(&header.setup_ron, &format!("{file} (embedded setup)"))
+            .map_err(|e| bad(&e.to_string()))?;
         Ok(Checkpoint {
             setup,
             spec: header.spec,
@@ -160,7 +170,10 @@ impl Checkpoint {
     /// Reads a checkpoint file.
     pub fn load(path: &Path) -> Result<Checkpoint, CheckpointError> {
         let file = path.display().to_string();
-        let bytes = std::fs::read(path).map_err(|e| CheckpointError::Io { file: file.clone(), message: e.to_string() })?;
+        let bytes = std::fs::read(path).map_err(|e| CheckpointError::Io {
+            file: file.clone(),
+            message: e.to_string(),
+        })?;
         Checkpoint::from_bytes(&bytes, &file)
     }
 }
@@ -168,14 +181,23 @@ impl Checkpoint {
 /// Decodes little-endian 3-vectors; `word` turns one element's bytes into a number.
 fn triples<T: Copy>(bytes: &[u8], word: impl Fn(&[u8]) -> T) -> Vec<[T; 3]> {
     let size = std::mem::size_of::<T>();
-    bytes.chunks_exact(3 * size).map(|c| [word(&c[..size]), word(&c[size..2 * size]), word(&c[2 * size..])]).collect()
+    bytes
+        .chunks_exact(3 * size)
+        .map(|c| [word(&c[..size]), word(&c[size..2 * size]), word(&c[2 * size..])])
+        .collect()
 }
 
 /// Writes `bytes` to `path` through a temporary file and a rename.
 pub fn write_atomically(path: &Path, bytes: &[u8]) -> Result<(), CheckpointError> {
     let file = path.display().to_string();
-    let io = |e: std::io::Error| CheckpointError::Io { file: file.clone(), message: e.to_string() };
-    let name = path.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_else(|| "checkpoint".into());
+    let io = |e: std::io::Error| CheckpointError::Io {
+        file: file.clone(),
+        message: e.to_string(),
+    };
+    let name = path
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "checkpoint".into());
     let tmp = path.with_file_name(format!(".{name}.partial-{}", std::process::id()));
     let result = (|| {
         let mut f = std::fs::File::create(&tmp)?;

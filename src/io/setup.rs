@@ -170,10 +170,19 @@ pub const BYTES_PER_ATOM_ESTIMATE: u64 = 600;
 pub enum SetupError {
     /// The text is not a valid setup.
     #[error("{file}:{line}:{column}: {message}")]
-    Parse { file: String, line: usize, column: usize, message: String },
+    Parse {
+        file: String,
+        line: usize,
+        column: usize,
+        message: String,
+    },
     /// A field has a value outside its allowed range.
     #[error("{field}: {value} is out of range; allowed: {allowed}")]
-    Field { field: String, value: String, allowed: String },
+    Field {
+        field: String,
+        value: String,
+        allowed: String,
+    },
     /// The file could not be read.
     #[error("{file}: {message}")]
     Read { file: String, message: String },
@@ -181,7 +190,11 @@ pub enum SetupError {
 
 impl SetupError {
     fn field(field: &str, value: impl std::fmt::Display, allowed: impl Into<String>) -> Self {
-        SetupError::Field { field: field.into(), value: value.to_string(), allowed: allowed.into() }
+        SetupError::Field {
+            field: field.into(),
+            value: value.to_string(),
+            allowed: allowed.into(),
+        }
     }
 
     /// The field the error is about, if it is about one.
@@ -195,25 +208,33 @@ impl SetupError {
 
 impl From<crate::physics::SpecError> for SetupError {
     fn from(e: crate::physics::SpecError) -> Self {
-        SetupError::Field { field: e.field.into(), value: e.value, allowed: e.allowed }
+        SetupError::Field {
+            field: e.field.into(),
+            value: e.value,
+            allowed: e.allowed,
+        }
     }
 }
 
 impl Setup {
     /// Parses setup text; `file` names it in error messages.
     pub fn parse(text: &str, file: &str) -> Result<Setup, SetupError> {
-        ron::Options::default().from_str(text).map_err(|e: ron::error::SpannedError| SetupError::Parse {
-            file: file.into(),
-            line: e.span.start.line,
-            column: e.span.start.col,
-            message: e.code.to_string(),
-        })
+        ron::Options::default()
+            .from_str(text)
+            .map_err(|e: ron::error::SpannedError| SetupError::Parse {
+                file: file.into(),
+                line: e.span.start.line,
+                column: e.span.start.col,
+                message: e.code.to_string(),
+            })
     }
 
     /// Reads and parses a setup file (not yet validated; see [`Setup::resolve`]).
     pub fn load(path: &Path) -> Result<Setup, SetupError> {
-        let text = std::fs::read_to_string(path)
-            .map_err(|e| SetupError::Read { file: path.display().to_string(), message: e.to_string() })?;
+        let text = std::fs::read_to_string(path).map_err(|e| SetupError::Read {
+            file: path.display().to_string(),
+            message: e.to_string(),
+        })?;
         Setup::parse(&text, &path.display().to_string())
     }
 
@@ -237,7 +258,10 @@ impl Setup {
     fn mean_mass_ratio(&self) -> f64 {
         let m0 = self.reference().params().molar_mass;
         let total: f64 = self.species.iter().map(|s| s.share).sum();
-        self.species.iter().map(|s| s.share / total * s.kind.params().molar_mass / m0).sum()
+        self.species
+            .iter()
+            .map(|s| s.share / total * s.kind.params().molar_mass / m0)
+            .sum()
     }
 
     /// Reduced number density of a density value.
@@ -245,15 +269,23 @@ impl Setup {
         let u = self.units();
         let real = |v: f64| -> Result<f64, SetupError> {
             if !u.has_real_units() {
-                return Err(SetupError::field("density", format!("{d:?}"), "Reduced(…) for the reduced Lennard-Jones fluid"));
+                return Err(SetupError::field(
+                    "density",
+                    format!("{d:?}"),
+                    "Reduced(…) for the reduced Lennard-Jones fluid",
+                ));
             }
             Ok(v)
         };
         Ok(match d {
             Density::Reduced(x) => x,
             Density::PerCubicNanometre(x) => real(x)? / u.number_density_per_nm3(),
-            Density::GramsPerCubicCentimetre(x) => real(x)? / (u.mass_density_g_cm3() * self.mean_mass_ratio()),
-            Density::KilogramsPerCubicMetre(x) => real(x)? * 1e-3 / (u.mass_density_g_cm3() * self.mean_mass_ratio()),
+            Density::GramsPerCubicCentimetre(x) => {
+                real(x)? / (u.mass_density_g_cm3() * self.mean_mass_ratio())
+            }
+            Density::KilogramsPerCubicMetre(x) => {
+                real(x)? * 1e-3 / (u.mass_density_g_cm3() * self.mean_mass_ratio())
+            }
         })
     }
 
@@ -264,7 +296,11 @@ impl Setup {
             Temperature::Reduced(x) => x,
             Temperature::Kelvin(x) => {
                 if !u.has_real_units() {
-                    return Err(SetupError::field(field, format!("{t:?}"), "Reduced(…) for the reduced Lennard-Jones fluid"));
+                    return Err(SetupError::field(
+                        field,
+                        format!("{t:?}"),
+                        "Reduced(…) for the reduced Lennard-Jones fluid",
+                    ));
                 }
                 x / u.temperature_kelvin()
             }
@@ -274,7 +310,13 @@ impl Setup {
     /// Reduced value of a time span.
     pub fn reduced_duration(&self, field: &str, t: Duration) -> Result<f64, SetupError> {
         let u = self.units();
-        let need_real = || SetupError::field(field, format!("{t:?}"), "Reduced(…) for the reduced Lennard-Jones fluid");
+        let need_real = || {
+            SetupError::field(
+                field,
+                format!("{t:?}"),
+                "Reduced(…) for the reduced Lennard-Jones fluid",
+            )
+        };
         Ok(match t {
             Duration::Reduced(x) => x,
             Duration::Femtoseconds(x) if u.has_real_units() => x / u.tau_fs(),
@@ -289,7 +331,13 @@ impl Setup {
         Ok(match l {
             Length::Sigma(x) => x,
             Length::Angstrom(x) if u.has_real_units() => x / u.sigma_angstrom(),
-            Length::Angstrom(_) => return Err(SetupError::field(field, format!("{l:?}"), "Sigma(…) for the reduced Lennard-Jones fluid")),
+            Length::Angstrom(_) => {
+                return Err(SetupError::field(
+                    field,
+                    format!("{l:?}"),
+                    "Sigma(…) for the reduced Lennard-Jones fluid",
+                ));
+            }
         })
     }
 
@@ -299,7 +347,13 @@ impl Setup {
         Ok(match r {
             Rate::Reduced(x) => x,
             Rate::PerPicosecond(x) if u.has_real_units() => x * u.tau_ps(),
-            Rate::PerPicosecond(_) => return Err(SetupError::field(field, format!("{r:?}"), "Reduced(…) for the reduced Lennard-Jones fluid")),
+            Rate::PerPicosecond(_) => {
+                return Err(SetupError::field(
+                    field,
+                    format!("{r:?}"),
+                    "Reduced(…) for the reduced Lennard-Jones fluid",
+                ));
+            }
         })
     }
 
@@ -309,42 +363,116 @@ impl Setup {
     pub fn resolve(&self) -> Result<SimulationSpec, SetupError> {
         self.check_species()?;
         if !(2..=MAX_ATOMS).contains(&self.atoms) {
-            return Err(SetupError::field("atoms", self.atoms, format!("2 to {MAX_ATOMS}")));
+            return Err(SetupError::field(
+                "atoms",
+                self.atoms,
+                format!("2 to {MAX_ATOMS}"),
+            ));
         }
         check_memory(self.atoms)?;
         let density = self.reduced_density(self.density)?;
-        in_range("density", format!("{:?} = {density:.5} reduced", self.density), density, 1e-6, 1.5, "reduced density ρσ³ from 1e-6 to 1.5")?;
+        in_range(
+            "density",
+            format!("{:?} = {density:.5} reduced", self.density),
+            density,
+            1e-6,
+            1.5,
+            "reduced density ρσ³ from 1e-6 to 1.5",
+        )?;
         let temperature = self.reduced_temperature("temperature", self.temperature)?;
-        in_range("temperature", format!("{:?} = {temperature:.5} reduced", self.temperature), temperature, 1e-3, 100.0, "reduced temperature kT/ε from 0.001 to 100")?;
+        in_range(
+            "temperature",
+            format!("{:?} = {temperature:.5} reduced", self.temperature),
+            temperature,
+            1e-3,
+            100.0,
+            "reduced temperature kT/ε from 0.001 to 100",
+        )?;
         let dt = self.reduced_duration("timestep", self.timestep)?;
-        in_range("timestep", format!("{:?} = {dt:.6} τ", self.timestep), dt, 1e-5, 0.05, "1e-5 τ to 0.05 τ")?;
+        in_range(
+            "timestep",
+            format!("{:?} = {dt:.6} τ", self.timestep),
+            dt,
+            1e-5,
+            0.05,
+            "1e-5 τ to 0.05 τ",
+        )?;
         let cutoff = self.reduced_length("cutoff", self.cutoff)?;
-        in_range("cutoff", format!("{:?} = {cutoff:.4} σ", self.cutoff), cutoff, 1.0, 10.0, "1 σ to 10 σ")?;
+        in_range(
+            "cutoff",
+            format!("{:?} = {cutoff:.4} σ", self.cutoff),
+            cutoff,
+            1.0,
+            10.0,
+            "1 σ to 10 σ",
+        )?;
         let skin = self.reduced_length("skin", self.skin)?;
-        in_range("skin", format!("{:?} = {skin:.4} σ", self.skin), skin, 0.0, 2.0, "0 σ to 2 σ")?;
+        in_range(
+            "skin",
+            format!("{:?} = {skin:.4} σ", self.skin),
+            skin,
+            0.0,
+            2.0,
+            "0 σ to 2 σ",
+        )?;
         let thermostat = match self.ensemble {
             Ensemble::Nve => Thermostat::None,
-            Ensemble::Nvt { thermostat: ThermostatChoice::StochasticRescale { relaxation } } => {
+            Ensemble::Nvt {
+                thermostat: ThermostatChoice::StochasticRescale { relaxation },
+            } => {
                 let tau = self.reduced_duration("ensemble.relaxation", relaxation)?;
-                in_range("ensemble.relaxation", format!("{relaxation:?} = {tau:.5} τ"), tau, dt, 1e4, &format!("one timestep ({dt:.5} τ) to 10000 τ"))?;
-                Thermostat::StochasticRescale { target: temperature, tau }
+                in_range(
+                    "ensemble.relaxation",
+                    format!("{relaxation:?} = {tau:.5} τ"),
+                    tau,
+                    dt,
+                    1e4,
+                    &format!("one timestep ({dt:.5} τ) to 10000 τ"),
+                )?;
+                Thermostat::StochasticRescale {
+                    target: temperature,
+                    tau,
+                }
             }
-            Ensemble::Nvt { thermostat: ThermostatChoice::Langevin { friction } } => {
+            Ensemble::Nvt {
+                thermostat: ThermostatChoice::Langevin { friction },
+            } => {
                 let gamma = self.reduced_rate("ensemble.friction", friction)?;
-                in_range("ensemble.friction", format!("{friction:?} = {gamma:.5} /τ"), gamma, 1e-4, 1.0 / dt, &format!("1e-4 /τ to one per timestep ({:.1} /τ)", 1.0 / dt))?;
-                Thermostat::Langevin { target: temperature, gamma }
+                in_range(
+                    "ensemble.friction",
+                    format!("{friction:?} = {gamma:.5} /τ"),
+                    gamma,
+                    1e-4,
+                    1.0 / dt,
+                    &format!("1e-4 /τ to one per timestep ({:.1} /τ)", 1.0 / dt),
+                )?;
+                Thermostat::Langevin {
+                    target: temperature,
+                    gamma,
+                }
             }
         };
         if self.steps == 0 || self.steps > 10_000_000_000 {
             return Err(SetupError::field("steps", self.steps, "1 to 10000000000"));
         }
         if self.sample_every == 0 || self.sample_every > self.steps {
-            return Err(SetupError::field("sample_every", self.sample_every, format!("1 to steps ({})", self.steps)));
+            return Err(SetupError::field(
+                "sample_every",
+                self.sample_every,
+                format!("1 to steps ({})", self.steps),
+            ));
         }
         if self.equilibration_steps >= self.steps {
-            return Err(SetupError::field("equilibration_steps", self.equilibration_steps, format!("0 to steps − 1 ({})", self.steps - 1)));
+            return Err(SetupError::field(
+                "equilibration_steps",
+                self.equilibration_steps,
+                format!("0 to steps − 1 ({})", self.steps - 1),
+            ));
         }
-        for (name, every) in [("trajectory_every", self.trajectory_every), ("rdf_every", self.rdf_every)] {
+        for (name, every) in [
+            ("trajectory_every", self.trajectory_every),
+            ("rdf_every", self.rdf_every),
+        ] {
             if every == Some(0) {
                 return Err(SetupError::field(name, "Some(0)", "None or Some(n) with n ≥ 1"));
             }
@@ -370,22 +498,42 @@ impl Setup {
     fn check_species(&self) -> Result<(), SetupError> {
         let n = self.species.len();
         if n == 0 || n > MAX_SPECIES {
-            return Err(SetupError::field("species", format!("{n} entries"), format!("1 to {MAX_SPECIES} species")));
+            return Err(SetupError::field(
+                "species",
+                format!("{n} entries"),
+                format!("1 to {MAX_SPECIES} species"),
+            ));
         }
         for (i, s) in self.species.iter().enumerate() {
             if !(s.share > 0.0 && s.share <= 1.0) {
-                return Err(SetupError::field(&format!("species[{i}].share"), s.share, "0 < share ≤ 1"));
+                return Err(SetupError::field(
+                    &format!("species[{i}].share"),
+                    s.share,
+                    "0 < share ≤ 1",
+                ));
             }
             if self.species[..i].iter().any(|o| o.kind == s.kind) {
-                return Err(SetupError::field(&format!("species[{i}].kind"), format!("{:?} (listed twice)", s.kind), "each species at most once"));
+                return Err(SetupError::field(
+                    &format!("species[{i}].kind"),
+                    format!("{:?} (listed twice)", s.kind),
+                    "each species at most once",
+                ));
             }
             if n > 1 && s.kind == Species::ReducedLJ {
-                return Err(SetupError::field(&format!("species[{i}].kind"), "ReducedLJ in a mixture", "ReducedLJ only on its own"));
+                return Err(SetupError::field(
+                    &format!("species[{i}].kind"),
+                    "ReducedLJ in a mixture",
+                    "ReducedLJ only on its own",
+                ));
             }
         }
         let sum: f64 = self.species.iter().map(|s| s.share).sum();
         if (sum - 1.0).abs() > 1e-6 {
-            return Err(SetupError::field("species", format!("shares adding up to {sum}"), "shares adding up to 1 (within 1e-6)"));
+            return Err(SetupError::field(
+                "species",
+                format!("shares adding up to {sum}"),
+                "shares adding up to 1 (within 1e-6)",
+            ));
         }
         Ok(())
     }
@@ -393,7 +541,9 @@ impl Setup {
     /// Notes for the user that are not errors (e.g. quantum effects at low temperature).
     pub fn cautions(&self) -> Vec<String> {
         let mut notes = Vec::new();
-        let Ok(t) = self.reduced_temperature("temperature", self.temperature) else { return notes };
+        let Ok(t) = self.reduced_temperature("temperature", self.temperature) else {
+            return notes;
+        };
         let t_ref_k = self.units().temperature_kelvin();
         for s in &self.species {
             if let Some(limit) = s.kind.quantum_warning_below_kelvin() {
@@ -422,13 +572,18 @@ fn in_range(field: &str, shown: String, v: f64, lo: f64, hi: f64, allowed: &str)
 fn check_memory(atoms: u64) -> Result<(), SetupError> {
     let need = atoms.saturating_mul(BYTES_PER_ATOM_ESTIMATE);
     if let Some(available) = available_memory_bytes()
-        && need > available {
-            return Err(SetupError::field(
-                "atoms",
-                format!("{atoms} (needs about {} MB)", need / 1_000_000),
-                format!("at most {} atoms with the {} MB of memory available now", available / BYTES_PER_ATOM_ESTIMATE, available / 1_000_000),
-            ));
-        }
+        && need > available
+    {
+        return Err(SetupError::field(
+            "atoms",
+            format!("{atoms} (needs about {} MB)", need / 1_000_000),
+            format!(
+                "at most {} atoms with the {} MB of memory available now",
+                available / BYTES_PER_ATOM_ESTIMATE,
+                available / 1_000_000
+            ),
+        ));
+    }
     Ok(())
 }
 

@@ -1,6 +1,6 @@
 //! `summary.json`: averages of a finished run with their standard errors.
 
-use crate::analysis::{block_average, detect_equilibration, Estimate};
+use crate::analysis::{Estimate, block_average, detect_equilibration};
 use crate::physics::{Observables, UnitSystem};
 use serde::Serialize;
 
@@ -82,21 +82,33 @@ pub struct RunFacts {
 impl Summary {
     /// Averages the samples at or after `equilibration_steps`.
     pub fn new(samples: &[Observables], units: UnitSystem, facts: RunFacts) -> Summary {
-        let used: Vec<&Observables> = samples.iter().filter(|o| o.step >= facts.equilibration_steps).collect();
-        let est = |f: &dyn Fn(&Observables) -> f64| block_average(&used.iter().map(|o| f(o)).collect::<Vec<_>>());
+        let used: Vec<&Observables> = samples
+            .iter()
+            .filter(|o| o.step >= facts.equilibration_steps)
+            .collect();
+        let est =
+            |f: &dyn Fn(&Observables) -> f64| block_average(&used.iter().map(|o| f(o)).collect::<Vec<_>>());
         let pe = est(&|o| o.potential);
         let p = est(&|o| o.pressure);
         let t = est(&|o| o.temperature);
         let pe_all: Vec<f64> = samples.iter().map(|o| o.potential).collect();
         let eq = detect_equilibration(&pe_all, (pe_all.len() / 200).max(1));
         let detected = samples.get(eq.start).map(|o| o.step).unwrap_or(0);
-        let scale = |e: Estimate, k: f64| Estimate { mean: e.mean * k, stderr: e.stderr * k };
+        let scale = |e: Estimate, k: f64| Estimate {
+            mean: e.mean * k,
+            stderr: e.stderr * k,
+        };
         let si = units.has_real_units().then(|| SiSummary {
             potential_energy_per_atom: scale(pe, units.energy_kj_mol()),
             pressure: scale(p, units.pressure_bar()),
             temperature: scale(t, units.temperature_kelvin()),
             density: facts.mass_density_g_cm3.unwrap_or(f64::NAN),
-            units: SiUnits { potential_energy_per_atom: "kJ/mol", pressure: "bar", temperature: "K", density: "g/cm^3" },
+            units: SiUnits {
+                potential_energy_per_atom: "kJ/mol",
+                pressure: "bar",
+                temperature: "K",
+                density: "g/cm^3",
+            },
         });
         let wall = facts.wall_seconds.max(1e-9);
         Summary {

@@ -1,7 +1,7 @@
 //! Lennard-Jones forces, potential energy and virial over the half neighbour list.
 
-use super::neighbours::{nearest_integer, separation, NeighbourList};
-use super::parallel::{SharedMut, ELEMENTWISE_TASK};
+use super::neighbours::{NeighbourList, nearest_integer, separation};
+use super::parallel::{ELEMENTWISE_TASK, SharedMut};
 use super::potential::{PairTable, PotentialMode};
 use rayon::prelude::*;
 
@@ -34,25 +34,40 @@ pub fn compute(
     forces: &mut [[f64; 3]],
     scratch: &mut ForceScratch,
 ) -> ForceSums {
-    forces.par_iter_mut().with_min_len(ELEMENTWISE_TASK).for_each(|f| *f = [0.0; 3]);
+    forces
+        .par_iter_mut()
+        .with_min_len(ELEMENTWISE_TASK)
+        .for_each(|f| *f = [0.0; 3]);
     let slabs = list.slabs();
     scratch.slab_sums.clear();
     scratch.slab_sums.resize(slabs, ForceSums::default());
     let mixed = table.types() > 1;
     let shifted_force = table.mode() == PotentialMode::ShiftedForce;
     let out = SharedMut(forces.as_mut_ptr());
-    let ctx = Ctx { positions, types, l: box_length, inv_l: 1.0 / box_length, table, list, out };
+    let ctx = Ctx {
+        positions,
+        types,
+        l: box_length,
+        inv_l: 1.0 / box_length,
+        table,
+        list,
+        out,
+    };
     let group = slabs.min(3);
     for phase in 0..group {
-        scratch.slab_sums.par_chunks_mut(group).enumerate().for_each(|(k, chunk)| {
-            let s = k * group + phase;
-            chunk[phase] = match (shifted_force, mixed) {
-                (false, false) => ctx.slab::<false, false>(s),
-                (false, true) => ctx.slab::<false, true>(s),
-                (true, false) => ctx.slab::<true, false>(s),
-                (true, true) => ctx.slab::<true, true>(s),
-            };
-        });
+        scratch
+            .slab_sums
+            .par_chunks_mut(group)
+            .enumerate()
+            .for_each(|(k, chunk)| {
+                let s = k * group + phase;
+                chunk[phase] = match (shifted_force, mixed) {
+                    (false, false) => ctx.slab::<false, false>(s),
+                    (false, true) => ctx.slab::<false, true>(s),
+                    (true, false) => ctx.slab::<true, false>(s),
+                    (true, true) => ctx.slab::<true, true>(s),
+                };
+            });
     }
     let mut total = ForceSums::default();
     for s in &scratch.slab_sums {
@@ -203,12 +218,20 @@ impl Ctx<'_> {
             f[1] += fi[1];
             f[2] += fi[2];
         }
-        ForceSums { potential: energy, virial }
+        ForceSums {
+            potential: energy,
+            virial,
+        }
     }
 }
 
 /// All-pairs reference evaluation (O(N²), minimum image); for tests and tiny systems.
-pub fn brute_force(positions: &[[f64; 3]], types: &[u8], box_length: f64, table: &PairTable) -> (Vec<[f64; 3]>, ForceSums) {
+pub fn brute_force(
+    positions: &[[f64; 3]],
+    types: &[u8],
+    box_length: f64,
+    table: &PairTable,
+) -> (Vec<[f64; 3]>, ForceSums) {
     let n = positions.len();
     let mut forces = vec![[0.0; 3]; n];
     let mut sums = ForceSums::default();

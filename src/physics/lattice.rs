@@ -1,6 +1,6 @@
 //! Starting configurations: composition to whole counts, fcc lattice, Maxwell–Boltzmann velocities.
 
-use super::random::{shuffle, Purpose, Stream};
+use super::random::{Purpose, Stream, shuffle};
 
 /// Turns composition shares into whole atom counts that add up to `atoms`.
 ///
@@ -15,7 +15,9 @@ pub fn whole_counts(shares: &[f64], atoms: usize) -> Vec<usize> {
     order.sort_by(|&a, &b| {
         let ra = exact[a] - exact[a].floor();
         let rb = exact[b] - exact[b].floor();
-        rb.partial_cmp(&ra).unwrap_or(std::cmp::Ordering::Equal).then(a.cmp(&b))
+        rb.partial_cmp(&ra)
+            .unwrap_or(std::cmp::Ordering::Equal)
+            .then(a.cmp(&b))
     });
     for &k in order.iter().cycle() {
         if left == 0 {
@@ -70,7 +72,11 @@ pub fn fcc_start(counts: &[usize], box_length: f64, seed: u64) -> (Vec<[f64; 3]>
             ]
         })
         .collect();
-    let mut types: Vec<u8> = counts.iter().enumerate().flat_map(|(t, &c)| std::iter::repeat_n(t as u8, c)).collect();
+    let mut types: Vec<u8> = counts
+        .iter()
+        .enumerate()
+        .flat_map(|(t, &c)| std::iter::repeat_n(t as u8, c))
+        .collect();
     if counts.len() > 1 {
         shuffle(&mut types, &mut Stream::new(seed, Purpose::SpeciesOrder, 0, 0));
     }
@@ -79,7 +85,13 @@ pub fn fcc_start(counts: &[usize], box_length: f64, seed: u64) -> (Vec<[f64; 3]>
 
 /// Maxwell–Boltzmann velocities at `temperature` with zero total momentum, rescaled so that
 /// 2K / dof equals `temperature` exactly. Each atom draws from its own random stream.
-pub fn maxwell_boltzmann(masses: &[f64], types: &[u8], temperature: f64, dof: f64, seed: u64) -> Vec<[f64; 3]> {
+pub fn maxwell_boltzmann(
+    masses: &[f64],
+    types: &[u8],
+    temperature: f64,
+    dof: f64,
+    seed: u64,
+) -> Vec<[f64; 3]> {
     let mut v: Vec<[f64; 3]> = types
         .iter()
         .enumerate()
@@ -105,7 +117,11 @@ pub fn maxwell_boltzmann(masses: &[f64], types: &[u8], temperature: f64, dof: f6
         }
         twice_k += masses[t as usize] * (vi[0] * vi[0] + vi[1] * vi[1] + vi[2] * vi[2]);
     }
-    let scale = if twice_k > 0.0 { (temperature * dof / twice_k).sqrt() } else { 0.0 };
+    let scale = if twice_k > 0.0 {
+        (temperature * dof / twice_k).sqrt()
+    } else {
+        0.0
+    };
     for vi in &mut v {
         for x in vi.iter_mut() {
             *x *= scale;

@@ -17,6 +17,6 @@ pub use observables::Observables;
 pub use potential::PotentialMode;
 pub use simulation::{Blowup, Simulation, SimulationSpec, SimulationState, SpecError};
 pub use species::Species;
-pub use thermostat::Thermostat;
 pub use system::System;
+pub use thermostat::Thermostat;
 pub use units::UnitSystem;

@@ -7,7 +7,7 @@
 //! s ≡ 0, 1, 2 (mod 3) in three phases: within a phase no two slabs write the same atom, and the
 //! order of additions into every atom is fixed by geometry alone, never by the thread count.
 
-use super::parallel::{SharedMut, ELEMENTWISE_TASK};
+use super::parallel::{ELEMENTWISE_TASK, SharedMut};
 use rayon::prelude::*;
 
 /// Atoms per storage chunk of the list; each chunk is built by one task, in one pass.
@@ -60,8 +60,19 @@ struct ShellCell {
 
 /// The 13 forward cell offsets of the half shell (the other 13 are their negatives).
 const HALF_SHELL: [[i32; 3]; 13] = [
-    [1, 0, 0], [1, 1, 0], [1, -1, 0], [0, 1, 0], [1, 0, 1], [1, 1, 1], [1, -1, 1],
-    [0, 1, 1], [1, 0, -1], [1, 1, -1], [1, -1, -1], [0, 1, -1], [0, 0, 1],
+    [1, 0, 0],
+    [1, 1, 0],
+    [1, -1, 0],
+    [0, 1, 0],
+    [1, 0, 1],
+    [1, 1, 1],
+    [1, -1, 1],
+    [0, 1, 1],
+    [1, 0, -1],
+    [1, 1, -1],
+    [1, -1, -1],
+    [0, 1, -1],
+    [0, 0, 1],
 ];
 
 /// Nearest integer for |t| < 2⁵¹ without a libm call (round-half-even via the FPU).
@@ -107,7 +118,11 @@ fn margin(l: f64) -> f64 {
 impl NeighbourList {
     /// An empty list for the given cutoff and skin; call [`NeighbourList::build`] before use.
     pub fn new(cutoff: f64, skin: f64) -> Self {
-        NeighbourList { reach: cutoff + skin, skin, ..Default::default() }
+        NeighbourList {
+            reach: cutoff + skin,
+            skin,
+            ..Default::default()
+        }
     }
 
     /// r_c + skin.
@@ -144,7 +159,11 @@ impl NeighbourList {
     /// by exactly one of its two atoms; a few pairs slightly beyond may be listed too.
     #[inline(always)]
     pub fn partners(&self, i: usize) -> &[u32] {
-        let lo = if i & (CHUNK - 1) == 0 { 0 } else { self.ends[i - 1] as usize };
+        let lo = if i & (CHUNK - 1) == 0 {
+            0
+        } else {
+            self.ends[i - 1] as usize
+        };
         &self.chunks[i >> CHUNK_SHIFT][lo..self.ends[i] as usize]
     }
 
@@ -161,8 +180,12 @@ impl NeighbourList {
 
     /// Bytes held by the list and its scratch (for memory accounting).
     pub fn heap_bytes(&self) -> usize {
-        4 * (self.chunks.iter().map(|c| c.capacity()).sum::<usize>() + self.ends.capacity() + self.slab_starts.capacity()
-            + self.slab_atoms.capacity() + self.cell_starts.capacity() + self.cell_atoms.capacity())
+        4 * (self.chunks.iter().map(|c| c.capacity()).sum::<usize>()
+            + self.ends.capacity()
+            + self.slab_starts.capacity()
+            + self.slab_atoms.capacity()
+            + self.cell_starts.capacity()
+            + self.cell_atoms.capacity())
             + 4 * (self.cell_pos.x.capacity() + self.cell_pos.y.capacity() + self.cell_pos.z.capacity())
             + 12 * self.reference.capacity()
     }
@@ -174,12 +197,16 @@ impl NeighbourList {
         }
         let limit = 0.25 * self.skin * self.skin;
         let (l, inv_l) = (self.box_length, 1.0 / self.box_length);
-        positions.par_iter().zip(self.reference.par_iter()).with_min_len(ELEMENTWISE_TASK).any(|(p, r)| {
-            let r = [r[0] as f64, r[1] as f64, r[2] as f64];
-            // Not finite (a blown-up run) also counts as moved.
-            let d2 = separation(p, &r, l, inv_l).1;
-            d2.is_nan() || d2 > limit
-        })
+        positions
+            .par_iter()
+            .zip(self.reference.par_iter())
+            .with_min_len(ELEMENTWISE_TASK)
+            .any(|(p, r)| {
+                let r = [r[0] as f64, r[1] as f64, r[2] as f64];
+                // Not finite (a blown-up run) also counts as moved.
+                let d2 = separation(p, &r, l, inv_l).1;
+                d2.is_nan() || d2 > limit
+            })
     }
 
     /// Rebuilds the list from `positions` in a periodic cube of edge `box_length`.
@@ -191,7 +218,12 @@ impl NeighbourList {
     pub fn build(&mut self, positions: &[[f64; 3]], box_length: f64) {
         let l = box_length;
         self.reference.clear();
-        self.reference.par_extend(positions.par_iter().with_min_len(ELEMENTWISE_TASK).map(|p| [fold(p[0], l) as f32, fold(p[1], l) as f32, fold(p[2], l) as f32]));
+        self.reference.par_extend(
+            positions
+                .par_iter()
+                .with_min_len(ELEMENTWISE_TASK)
+                .map(|p| [fold(p[0], l) as f32, fold(p[1], l) as f32, fold(p[2], l) as f32]),
+        );
         self.build_from_reference(l);
     }
 
@@ -218,14 +250,26 @@ impl NeighbourList {
         self.chunks.truncate(chunk_count);
         let ends = SharedMut(self.ends.as_mut_ptr());
         let positions = &self.reference;
-        let grid = Grid { l, cells, reach: self.reach, starts: &self.cell_starts, atoms: &self.cell_atoms, pos: &self.cell_pos, shell: &self.shell };
+        let grid = Grid {
+            l,
+            cells,
+            reach: self.reach,
+            starts: &self.cell_starts,
+            atoms: &self.cell_atoms,
+            pos: &self.cell_pos,
+            shell: &self.shell,
+        };
         // Expected partners per atom of a uniform fluid, (2/3)π ρ reach³: the first build
         // reserves near the final size instead of growing step by step.
         let uniform = 2.0 / 3.0 * std::f64::consts::PI * n as f64 / (l * l * l) * self.reach.powi(3);
         let per_atom = uniform.ceil() as usize + 1;
         self.chunks.par_iter_mut().enumerate().for_each(|(k, list)| {
             let atoms = ((k + 1) * CHUNK).min(n) - k * CHUNK;
-            let expected = if list.is_empty() { atoms * per_atom } else { list.len() + list.len() / 32 + 32 };
+            let expected = if list.is_empty() {
+                atoms * per_atom
+            } else {
+                list.len() + list.len() / 32 + 32
+            };
             list.clear();
             if list.capacity() < expected {
                 list.reserve_exact(expected);
@@ -251,7 +295,13 @@ impl NeighbourList {
     /// folded positions stored alongside in cell order.
     fn sort_into_cells(&mut self, l: f64, cells: usize) {
         let pos = &self.reference;
-        counting_sort(pos.len(), cells * cells * cells, |i| cell_of(&pos[i], l, cells), &mut self.cell_starts, &mut self.cell_atoms);
+        counting_sort(
+            pos.len(),
+            cells * cells * cells,
+            |i| cell_of(&pos[i], l, cells),
+            &mut self.cell_starts,
+            &mut self.cell_atoms,
+        );
         let cp = &mut self.cell_pos;
         for v in [&mut cp.x, &mut cp.y, &mut cp.z] {
             v.clear();
@@ -274,17 +324,30 @@ impl NeighbourList {
         let nc = cells as i32;
         let lf = l as f32;
         for c in 0..total {
-            let here = [(c / (cells * cells)) as i32, ((c / cells) % cells) as i32, (c % cells) as i32];
+            let here = [
+                (c / (cells * cells)) as i32,
+                ((c / cells) % cells) as i32,
+                (c % cells) as i32,
+            ];
             for off in &HALF_SHELL {
                 let mut shift = [0f32; 3];
                 let mut idx = [0usize; 3];
                 for a in 0..3 {
                     let x = here[a] + off[a];
                     // A neighbour across a face: its atoms are seen one box edge away.
-                    shift[a] = if x >= nc { lf } else if x < 0 { -lf } else { 0.0 };
+                    shift[a] = if x >= nc {
+                        lf
+                    } else if x < 0 {
+                        -lf
+                    } else {
+                        0.0
+                    };
                     idx[a] = x.rem_euclid(nc) as usize;
                 }
-                self.shell.push(ShellCell { cell: ((idx[0] * cells + idx[1]) * cells + idx[2]) as u32, shift });
+                self.shell.push(ShellCell {
+                    cell: ((idx[0] * cells + idx[1]) * cells + idx[2]) as u32,
+                    shift,
+                });
             }
         }
         self.shell_cells = total;
@@ -295,7 +358,13 @@ impl NeighbourList {
         let fit = (l / self.reach).floor() as usize;
         let slabs = if fit >= 3 { fit - fit % 3 } else { 1 };
         let pos = &self.reference;
-        counting_sort(pos.len(), slabs, |i| bin(pos[i][2], l, slabs), &mut self.slab_starts, &mut self.slab_atoms);
+        counting_sort(
+            pos.len(),
+            slabs,
+            |i| bin(pos[i][2], l, slabs),
+            &mut self.slab_starts,
+            &mut self.slab_atoms,
+        );
     }
 }
 
@@ -335,13 +404,23 @@ impl Grid<'_> {
         let reach2 = (reach * reach) as f32;
         let own = cell_of(&pos[i], self.l, self.cells);
         let (lo, hi) = (self.starts[own] as usize, self.starts[own + 1] as usize);
-        let slot = lo + self.atoms[lo..hi].iter().position(|&a| a as usize == i).expect("atom is in its own cell");
+        let slot = lo
+            + self.atoms[lo..hi]
+                .iter()
+                .position(|&a| a as usize == i)
+                .expect("atom is in its own cell");
         let pi = [self.pos.x[slot], self.pos.y[slot], self.pos.z[slot]];
         self.scan(pi, slot + 1, hi, reach2, list);
         for sc in &self.shell[13 * own..13 * own + 13] {
             let c = sc.cell as usize;
             let q = [pi[0] - sc.shift[0], pi[1] - sc.shift[1], pi[2] - sc.shift[2]];
-            self.scan(q, self.starts[c] as usize, self.starts[c + 1] as usize, reach2, list);
+            self.scan(
+                q,
+                self.starts[c] as usize,
+                self.starts[c + 1] as usize,
+                reach2,
+                list,
+            );
         }
     }
 
@@ -354,7 +433,11 @@ impl Grid<'_> {
         while start < hi {
             let end = (start + MAX).min(hi);
             let m = end - start;
-            let (xs, ys, zs) = (&self.pos.x[start..end], &self.pos.y[start..end], &self.pos.z[start..end]);
+            let (xs, ys, zs) = (
+                &self.pos.x[start..end],
+                &self.pos.y[start..end],
+                &self.pos.z[start..end],
+            );
             let mut inside = [0u32; MAX];
             for k in 0..m {
                 let (dx, dy, dz) = (p[0] - xs[k], p[1] - ys[k], p[2] - zs[k]);
@@ -391,7 +474,13 @@ fn push_tight(list: &mut Vec<u32>, a: u32) {
 }
 
 /// Stable counting sort of 0..n into `bins` by `key`, written as CSR (`starts`, `items`).
-fn counting_sort<K: Fn(usize) -> usize>(n: usize, bins: usize, key: K, starts: &mut Vec<u32>, items: &mut Vec<u32>) {
+fn counting_sort<K: Fn(usize) -> usize>(
+    n: usize,
+    bins: usize,
+    key: K,
+    starts: &mut Vec<u32>,
+    items: &mut Vec<u32>,
+) {
     starts.clear();
     starts.resize(bins + 1, 0);
     for i in 0..n {

@@ -40,8 +40,11 @@ impl PairParams {
 
 impl PotentialMode {
     /// Every mode, in the order the setup form lists them.
-    pub const ALL: [PotentialMode; 3] =
-        [PotentialMode::Truncated, PotentialMode::TruncatedShifted, PotentialMode::ShiftedForce];
+    pub const ALL: [PotentialMode; 3] = [
+        PotentialMode::Truncated,
+        PotentialMode::TruncatedShifted,
+        PotentialMode::ShiftedForce,
+    ];
 }
 
 /// Lennard-Jones parameters of one pair of species, in reduced units.
@@ -106,7 +109,13 @@ impl PairTable {
                 });
             }
         }
-        PairTable { types, pairs, mode, cutoff, cutoff2: cutoff * cutoff }
+        PairTable {
+            types,
+            pairs,
+            mode,
+            cutoff,
+            cutoff2: cutoff * cutoff,
+        }
     }
 
     /// Number of species.

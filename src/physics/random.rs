@@ -39,7 +39,10 @@ impl Stream {
         key[24..32].copy_from_slice(b"noblescp");
         let mut rng = ChaCha8Rng::from_seed(key);
         rng.set_stream(lane);
-        Stream { rng, spare_normal: None }
+        Stream {
+            rng,
+            spare_normal: None,
+        }
     }
 
     /// Raw 64 random bits.
@@ -104,10 +107,18 @@ mod tests {
 
     #[test]
     fn streams_are_reproducible_and_distinct() {
-        let a: Vec<u64> = (0..4).map(|_| Stream::new(7, Purpose::Langevin, 3, 11).next_u64()).collect();
+        let a: Vec<u64> = (0..4)
+            .map(|_| Stream::new(7, Purpose::Langevin, 3, 11).next_u64())
+            .collect();
         assert!(a.windows(2).all(|w| w[0] == w[1]));
-        assert_ne!(Stream::new(7, Purpose::Langevin, 3, 11).next_u64(), Stream::new(7, Purpose::Langevin, 3, 12).next_u64());
-        assert_ne!(Stream::new(7, Purpose::Langevin, 3, 11).next_u64(), Stream::new(7, Purpose::Langevin, 4, 11).next_u64());
+        assert_ne!(
+            Stream::new(7, Purpose::Langevin, 3, 11).next_u64(),
+            Stream::new(7, Purpose::Langevin, 3, 12).next_u64()
+        );
+        assert_ne!(
+            Stream::new(7, Purpose::Langevin, 3, 11).next_u64(),
+            Stream::new(7, Purpose::Langevin, 4, 11).next_u64()
+        );
     }
 
     #[test]

@@ -78,9 +78,19 @@ impl SimulationSpec {
 
     /// Checks the values the physics needs; the setup layer checks the rest with units.
     pub fn check(&self) -> Result<(), SpecError> {
-        let err = |field, value: String, allowed: &str| Err(SpecError { field, value, allowed: allowed.into() });
+        let err = |field, value: String, allowed: &str| {
+            Err(SpecError {
+                field,
+                value,
+                allowed: allowed.into(),
+            })
+        };
         if self.kinds.is_empty() || self.kinds.len() != self.counts.len() || self.kinds.len() > 255 {
-            return err("species", format!("{} species", self.kinds.len()), "1 to 255 species, one count each");
+            return err(
+                "species",
+                format!("{} species", self.kinds.len()),
+                "1 to 255 species, one count each",
+            );
         }
         if self.atoms() < 2 {
             return err("atoms", self.atoms().to_string(), "at least 2");
@@ -95,26 +105,40 @@ impl SimulationSpec {
             return err("timestep", self.timestep.to_string(), "a positive number");
         }
         if !(self.cutoff > 0.0 && self.skin >= 0.0) {
-            return err("cutoff", format!("{} (skin {})", self.cutoff, self.skin), "cutoff > 0 and skin ≥ 0");
+            return err(
+                "cutoff",
+                format!("{} (skin {})", self.cutoff, self.skin),
+                "cutoff > 0 and skin ≥ 0",
+            );
         }
         let half = 0.5 * self.box_length();
         if self.cutoff + self.skin > half {
             return err(
                 "cutoff",
                 format!("cutoff + skin = {:.4} σ", self.cutoff + self.skin),
-                &format!("at most half the box edge, {half:.4} σ (use more atoms, a lower density or a shorter cutoff)"),
+                &format!(
+                    "at most half the box edge, {half:.4} σ (use more atoms, a lower density or a shorter cutoff)"
+                ),
             );
         }
         match self.thermostat {
             Thermostat::None => {}
             Thermostat::StochasticRescale { target, tau } => {
                 if !(target > 0.0 && tau > 0.0 && tau.is_finite()) {
-                    return err("ensemble", format!("target {target}, relaxation {tau}"), "target > 0 and relaxation time > 0");
+                    return err(
+                        "ensemble",
+                        format!("target {target}, relaxation {tau}"),
+                        "target > 0 and relaxation time > 0",
+                    );
                 }
             }
             Thermostat::Langevin { target, gamma } => {
                 if !(target > 0.0 && gamma > 0.0 && gamma.is_finite()) {
-                    return err("ensemble", format!("target {target}, friction {gamma}"), "target > 0 and friction > 0");
+                    return err(
+                        "ensemble",
+                        format!("target {target}, friction {gamma}"),
+                        "target > 0 and friction > 0",
+                    );
                 }
             }
         }
@@ -123,8 +147,16 @@ impl SimulationSpec {
 
     fn pair_table(&self) -> PairTable {
         let reference = self.kinds[0].params();
-        let eps: Vec<f64> = self.kinds.iter().map(|k| k.params().epsilon_kelvin / reference.epsilon_kelvin).collect();
-        let sig: Vec<f64> = self.kinds.iter().map(|k| k.params().sigma_angstrom / reference.sigma_angstrom).collect();
+        let eps: Vec<f64> = self
+            .kinds
+            .iter()
+            .map(|k| k.params().epsilon_kelvin / reference.epsilon_kelvin)
+            .collect();
+        let sig: Vec<f64> = self
+            .kinds
+            .iter()
+            .map(|k| k.params().sigma_angstrom / reference.sigma_angstrom)
+            .collect();
         PairTable::lorentz_berthelot(&eps, &sig, self.cutoff, self.potential)
     }
 
@@ -177,9 +209,23 @@ impl Simulation {
         let l = spec.box_length();
         let (positions, types) = lattice::fcc_start(&spec.counts, l, spec.seed);
         let masses = spec.masses();
-        let velocities = lattice::maxwell_boltzmann(&masses, &types, spec.temperature, spec.degrees_of_freedom(), spec.seed);
+        let velocities = lattice::maxwell_boltzmann(
+            &masses,
+            &types,
+            spec.temperature,
+            spec.degrees_of_freedom(),
+            spec.seed,
+        );
         let n = positions.len();
-        let system = System { box_length: l, positions, velocities, forces: vec![[0.0; 3]; n], types, kinds: spec.kinds.clone(), masses };
+        let system = System {
+            box_length: l,
+            positions,
+            velocities,
+            forces: vec![[0.0; 3]; n],
+            types,
+            kinds: spec.kinds.clone(),
+            masses,
+        };
         let mut sim = Self::assemble(spec, system);
         sim.list.build(&sim.system.positions, l);
         sim.compute_forces();
@@ -191,11 +237,23 @@ impl Simulation {
     pub fn from_state(spec: SimulationSpec, state: SimulationState) -> Result<Self, SpecError> {
         spec.check()?;
         let n = spec.atoms();
-        if state.positions.len() != n || state.velocities.len() != n || state.types.len() != n || state.list_reference.len() != n {
-            return Err(SpecError { field: "atoms", value: format!("{} in the saved state", state.positions.len()), allowed: format!("{n}, as in the setup") });
+        if state.positions.len() != n
+            || state.velocities.len() != n
+            || state.types.len() != n
+            || state.list_reference.len() != n
+        {
+            return Err(SpecError {
+                field: "atoms",
+                value: format!("{} in the saved state", state.positions.len()),
+                allowed: format!("{n}, as in the setup"),
+            });
         }
         if state.types.iter().any(|&t| t as usize >= spec.kinds.len()) {
-            return Err(SpecError { field: "species", value: "a type index beyond the species list".into(), allowed: format!("{} species", spec.kinds.len()) });
+            return Err(SpecError {
+                field: "species",
+                value: "a type index beyond the species list".into(),
+                allowed: format!("{} species", spec.kinds.len()),
+            });
         }
         let system = System {
             box_length: state.box_length,
@@ -313,7 +371,9 @@ impl Simulation {
     /// Bytes of heap memory held by the per-atom arrays and the neighbour list.
     pub fn heap_bytes(&self) -> usize {
         let s = &self.system;
-        24 * (s.positions.capacity() + s.velocities.capacity() + s.forces.capacity()) + s.types.capacity() + self.list.heap_bytes()
+        24 * (s.positions.capacity() + s.velocities.capacity() + s.forces.capacity())
+            + s.types.capacity()
+            + self.list.heap_bytes()
     }
 
     /// Makes the drift reference the present conserved energy.
@@ -348,7 +408,13 @@ impl Simulation {
 
     /// Changes cutoff, skin, potential mode and tail correction; forces are recomputed and the
     /// drift reference moves to the new energy surface.
-    pub fn set_interaction(&mut self, cutoff: f64, skin: f64, potential: PotentialMode, tail_correction: bool) -> Result<(), SpecError> {
+    pub fn set_interaction(
+        &mut self,
+        cutoff: f64,
+        skin: f64,
+        potential: PotentialMode,
+        tail_correction: bool,
+    ) -> Result<(), SpecError> {
         let mut spec = self.spec.clone();
         spec.cutoff = cutoff;
         spec.skin = skin;
@@ -385,7 +451,15 @@ impl Simulation {
 
     fn compute_forces(&mut self) {
         let s = &mut self.system;
-        self.sums = forces::compute(&s.positions, &s.types, s.box_length, &self.table, &self.list, &mut s.forces, &mut self.scratch);
+        self.sums = forces::compute(
+            &s.positions,
+            &s.types,
+            s.box_length,
+            &self.table,
+            &self.list,
+            &mut s.forces,
+            &mut self.scratch,
+        );
     }
 
     /// Advances one timestep.
@@ -430,13 +504,18 @@ impl Simulation {
         let (seed, step) = (self.spec.seed, self.step);
         let s = &mut self.system;
         let masses = &s.masses;
-        s.velocities.par_iter_mut().zip(s.types.par_iter()).enumerate().with_min_len(ELEMENTWISE_TASK / 8).for_each(|(i, (v, &t))| {
-            let mut rng = Stream::new(seed, Purpose::Langevin, step, i as u64);
-            let w = noise * (target / masses[t as usize]).sqrt();
-            for x in v.iter_mut() {
-                *x = c1 * *x + w * rng.normal();
-            }
-        });
+        s.velocities
+            .par_iter_mut()
+            .zip(s.types.par_iter())
+            .enumerate()
+            .with_min_len(ELEMENTWISE_TASK / 8)
+            .for_each(|(i, (v, &t))| {
+                let mut rng = Stream::new(seed, Purpose::Langevin, step, i as u64);
+                let w = noise * (target / masses[t as usize]).sqrt();
+                for x in v.iter_mut() {
+                    *x = c1 * *x + w * rng.normal();
+                }
+            });
         self.heat += self.system.kinetic_energy() - before;
         self.drift(0.5 * dt);
         self.after_drift();
@@ -452,32 +531,45 @@ impl Simulation {
         let mut rng = thermostat::rescale_stream(self.spec.seed, self.step, half);
         let k_new = thermostat::rescaled_kinetic(k, 0.5 * dof * target, dof, dt, tau, &mut rng).max(0.0);
         let alpha = (k_new / k).sqrt();
-        self.system.velocities.par_iter_mut().with_min_len(ELEMENTWISE_TASK).for_each(|v| {
-            for x in v.iter_mut() {
-                *x *= alpha;
-            }
-        });
+        self.system
+            .velocities
+            .par_iter_mut()
+            .with_min_len(ELEMENTWISE_TASK)
+            .for_each(|v| {
+                for x in v.iter_mut() {
+                    *x *= alpha;
+                }
+            });
         self.heat += k_new - k;
     }
 
     fn kick(&mut self, h: f64) {
         let s = &mut self.system;
         let masses = &s.masses;
-        s.velocities.par_iter_mut().zip(s.forces.par_iter()).zip(s.types.par_iter()).with_min_len(ELEMENTWISE_TASK).for_each(|((v, f), &t)| {
-            let a = h / masses[t as usize];
-            v[0] += a * f[0];
-            v[1] += a * f[1];
-            v[2] += a * f[2];
-        });
+        s.velocities
+            .par_iter_mut()
+            .zip(s.forces.par_iter())
+            .zip(s.types.par_iter())
+            .with_min_len(ELEMENTWISE_TASK)
+            .for_each(|((v, f), &t)| {
+                let a = h / masses[t as usize];
+                v[0] += a * f[0];
+                v[1] += a * f[1];
+                v[2] += a * f[2];
+            });
     }
 
     fn drift(&mut self, h: f64) {
         let s = &mut self.system;
-        s.positions.par_iter_mut().zip(s.velocities.par_iter()).with_min_len(ELEMENTWISE_TASK).for_each(|(x, v)| {
-            x[0] += h * v[0];
-            x[1] += h * v[1];
-            x[2] += h * v[2];
-        });
+        s.positions
+            .par_iter_mut()
+            .zip(s.velocities.par_iter())
+            .with_min_len(ELEMENTWISE_TASK)
+            .for_each(|(x, v)| {
+                x[0] += h * v[0];
+                x[1] += h * v[1];
+                x[2] += h * v[2];
+            });
     }
 
     fn after_drift(&mut self) {
@@ -493,13 +585,23 @@ impl Simulation {
         }
         let s = &self.system;
         let mut atoms: Vec<usize> = (0..s.len())
-            .filter(|&i| !(s.positions[i].iter().chain(&s.velocities[i]).chain(&s.forces[i]).all(|x| x.is_finite())))
+            .filter(|&i| {
+                !(s.positions[i]
+                    .iter()
+                    .chain(&s.velocities[i])
+                    .chain(&s.forces[i])
+                    .all(|x| x.is_finite()))
+            })
             .take(8)
             .collect();
         if atoms.is_empty() {
             atoms = self.strongest_forces(8);
         }
-        Err(Blowup { step: self.step, reason: "potential energy or virial is not finite".into(), atoms })
+        Err(Blowup {
+            step: self.step,
+            reason: "potential energy or virial is not finite".into(),
+            atoms,
+        })
     }
 
     /// Indices of the `k` atoms with the largest force magnitude (finite ones first).
@@ -521,7 +623,16 @@ impl Simulation {
             .forces
             .par_iter()
             .map(|f| f[0] * f[0] + f[1] * f[1] + f[2] * f[2])
-            .reduce(|| 0.0, |a, b| if a.is_nan() || b.is_nan() { f64::NAN } else { a.max(b) })
+            .reduce(
+                || 0.0,
+                |a, b| {
+                    if a.is_nan() || b.is_nan() {
+                        f64::NAN
+                    } else {
+                        a.max(b)
+                    }
+                },
+            )
             .sqrt()
     }
 
@@ -548,7 +659,6 @@ impl Simulation {
             drift: (conserved - self.drift_origin) / self.drift_scale,
         }
     }
-
 }
 
 /// Velocity reversal helper for reversibility checks: v → −v for every atom.

@@ -55,7 +55,11 @@ impl Species {
             // Unit values; conversions to real units are refused for this species.
             Species::ReducedLJ => (1.0, 1.0, 1.0),
         };
-        SpeciesParams { epsilon_kelvin, sigma_angstrom, molar_mass }
+        SpeciesParams {
+            epsilon_kelvin,
+            sigma_angstrom,
+            molar_mass,
+        }
     }
 
     /// Whether quantities of this species have a meaning in kelvin, ångström and so on.

@@ -86,6 +86,10 @@ impl System {
     pub fn wrapped(&self, i: usize) -> [f64; 3] {
         let l = self.box_length;
         let p = self.positions[i];
-        [p[0] - l * (p[0] / l).floor(), p[1] - l * (p[1] / l).floor(), p[2] - l * (p[2] / l).floor()]
+        [
+            p[0] - l * (p[0] / l).floor(),
+            p[1] - l * (p[1] / l).floor(),
+            p[2] - l * (p[2] / l).floor(),
+        ]
     }
 }

@@ -21,7 +21,9 @@ impl Thermostat {
     pub fn target(&self) -> Option<f64> {
         match *self {
             Thermostat::None => None,
-            Thermostat::StochasticRescale { target, .. } | Thermostat::Langevin { target, .. } => Some(target),
+            Thermostat::StochasticRescale { target, .. } | Thermostat::Langevin { target, .. } => {
+                Some(target)
+            }
         }
     }
 }
@@ -41,7 +43,8 @@ pub fn rescaled_kinetic(kinetic: f64, target: f64, dof: f64, dt: f64, tau: f64, 
     } else {
         (0..rest as usize).map(|_| stream.normal().powi(2)).sum()
     };
-    kinetic + (1.0 - c) * (target * (r1 * r1 + s) / dof - kinetic)
+    kinetic
+        + (1.0 - c) * (target * (r1 * r1 + s) / dof - kinetic)
         + 2.0 * r1 * (kinetic * target / dof * (1.0 - c) * c).sqrt()
 }
 

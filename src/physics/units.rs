@@ -25,7 +25,10 @@ pub struct UnitSystem {
 impl UnitSystem {
     /// Units built on `reference` (σ, ε, m of that species are 1).
     pub fn new(reference: Species) -> Self {
-        UnitSystem { reference, params: reference.params() }
+        UnitSystem {
+            reference,
+            params: reference.params(),
+        }
     }
 
     /// Whether real-unit conversions are meaningful.

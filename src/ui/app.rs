@@ -14,8 +14,8 @@ use crate::engine::{Command, EngineHandle, Event, Frame};
 use crate::io::setup::{Ensemble, Setup};
 use crate::io::summary::MODEL_CAUTION;
 use std::path::PathBuf;
-use std::sync::mpsc::{self, Receiver, Sender};
 use std::sync::Arc;
+use std::sync::mpsc::{self, Receiver, Sender};
 use std::time::{Duration, Instant};
 
 /// The scenario the window opens on when nothing else is asked for.
@@ -64,7 +64,9 @@ enum Leave {
 enum Ask {
     OpenSetup,
     /// Save the form's setup, then go on with `then` (the answer to a leave question).
-    SaveSetup { then: Option<Leave> },
+    SaveSetup {
+        then: Option<Leave>,
+    },
     SaveCheckpoint,
     LoadCheckpoint,
     ExportCsv,
@@ -117,7 +119,10 @@ impl NoblescopeApp {
                 path = p;
                 s
             }
-            None => match remembered(STORAGE_SETUP).and_then(|t| Setup::parse(&t, "remembered setup").ok()).filter(|s| s.resolve().is_ok()) {
+            None => match remembered(STORAGE_SETUP)
+                .and_then(|t| Setup::parse(&t, "remembered setup").ok())
+                .filter(|s| s.resolve().is_ok())
+            {
                 Some(s) => {
                     restored = true;
                     path = remembered(STORAGE_PATH).map(PathBuf::from);
@@ -126,7 +131,9 @@ impl NoblescopeApp {
                 None => bundled_setup(),
             },
         };
-        let mut settings: ViewSettings = remembered(STORAGE_VIEW).and_then(|t| ron::from_str(&t).ok()).unwrap_or_default();
+        let mut settings: ViewSettings = remembered(STORAGE_VIEW)
+            .and_then(|t| ron::from_str(&t).ok())
+            .unwrap_or_default();
         let mut form_open = remembered(STORAGE_FORM_OPEN).map(|t| t == "true").unwrap_or(true);
         match opts.view {
             Some(StartView::Box3d) => {
@@ -177,7 +184,9 @@ impl NoblescopeApp {
             leave: None,
             allow_close: false,
             persist: opts.persist,
-            watch: opts.watch.map(|p| (p, WatchRecorder::new(), view_name.to_string())),
+            watch: opts
+                .watch
+                .map(|p| (p, WatchRecorder::new(), view_name.to_string())),
             watch_done: false,
             shot_tx,
             shot_rx,
@@ -265,7 +274,10 @@ impl NoblescopeApp {
             }
             Err(e) => {
                 // The engine cannot start on this setup: open the bundled one and show why.
-                self.status.message = Some((format!("Could not start that setup: {e}. Showing the bundled scenario instead."), true));
+                self.status.message = Some((
+                    format!("Could not start that setup: {e}. Showing the bundled scenario instead."),
+                    true,
+                ));
                 let b = bundled_setup();
                 self.running = b.clone();
                 self.initial = Some(b);
@@ -284,9 +296,10 @@ impl NoblescopeApp {
                 Event::Sample(o) => self.plots.push(&o),
                 Event::Status(s) => {
                     if let Some((_, rec, _)) = &mut self.watch
-                        && s.running {
-                            rec.step(now, s.step);
-                        }
+                        && s.running
+                    {
+                        rec.step(now, s.step);
+                    }
                     self.status.status = s;
                 }
                 Event::Started { setup, atoms } => {
@@ -310,8 +323,14 @@ impl NoblescopeApp {
                 Event::Tuned(report) => {
                     let units = crate::physics::UnitSystem::new(report.reference);
                     let text = match report.recommended {
-                        Some(dt) if units.has_real_units() => format!("Tuning scan done: recommended timestep {} fs.", super::unit_field::format_number(dt * units.tau_fs())),
-                        Some(dt) => format!("Tuning scan done: recommended timestep {} τ.", super::unit_field::format_number(dt)),
+                        Some(dt) if units.has_real_units() => format!(
+                            "Tuning scan done: recommended timestep {} fs.",
+                            super::unit_field::format_number(dt * units.tau_fs())
+                        ),
+                        Some(dt) => format!(
+                            "Tuning scan done: recommended timestep {} τ.",
+                            super::unit_field::format_number(dt)
+                        ),
                         None => "Tuning scan done: no timestep tried was steady enough.".to_string(),
                     };
                     self.status.message = Some((text, false));
@@ -325,9 +344,14 @@ impl NoblescopeApp {
                 Event::Rewound { step, time } => {
                     self.plots.rewind_to(time);
                     self.status.alarm = None;
-                    self.status.message = Some((format!("Rewound to step {step}; lower the timestep before running on."), false));
+                    self.status.message = Some((
+                        format!("Rewound to step {step}; lower the timestep before running on."),
+                        false,
+                    ));
                 }
-                Event::Saved(p) => self.status.message = Some((format!("Checkpoint saved to {}", p.display()), false)),
+                Event::Saved(p) => {
+                    self.status.message = Some((format!("Checkpoint saved to {}", p.display()), false))
+                }
             }
         }
     }
@@ -352,11 +376,21 @@ impl NoblescopeApp {
                 if s.timestep != r.timestep {
                     self.send(Command::SetTimestep(s.timestep));
                 }
-                if (s.cutoff, s.skin, s.potential, s.tail_correction) != (r.cutoff, r.skin, r.potential, r.tail_correction) {
-                    self.send(Command::SetInteraction { cutoff: s.cutoff, skin: s.skin, potential: s.potential, tail_correction: s.tail_correction });
+                if (s.cutoff, s.skin, s.potential, s.tail_correction)
+                    != (r.cutoff, r.skin, r.potential, r.tail_correction)
+                {
+                    self.send(Command::SetInteraction {
+                        cutoff: s.cutoff,
+                        skin: s.skin,
+                        potential: s.potential,
+                        tail_correction: s.tail_correction,
+                    });
                 }
                 if (s.ensemble, s.temperature) != (r.ensemble, r.temperature) {
-                    self.send(Command::SetThermostat { ensemble: s.ensemble, temperature: s.temperature });
+                    self.send(Command::SetThermostat {
+                        ensemble: s.ensemble,
+                        temperature: s.temperature,
+                    });
                 }
             }
             FormAction::Revert => self.form = SetupForm::from_setup(&self.running),
@@ -366,7 +400,10 @@ impl NoblescopeApp {
     fn tuning_action(&mut self, action: TuningAction) {
         match action {
             TuningAction::Start(c) => {
-                self.status.message = Some(("Tuning scan started on copies of the present state.".into(), false));
+                self.status.message = Some((
+                    "Tuning scan started on copies of the present state.".into(),
+                    false,
+                ));
                 self.send(c);
             }
             TuningAction::Cancel => self.send(Command::CancelTune),
@@ -431,13 +468,21 @@ impl NoblescopeApp {
             }
             Err(e) => {
                 self.form_open = true;
-                self.status.message = Some((format!("{name} has an error: {e}. The running simulation is unchanged."), true));
+                self.status.message = Some((
+                    format!("{name} has an error: {e}. The running simulation is unchanged."),
+                    true,
+                ));
             }
         }
     }
 
     /// Opens a file dialog for `ask`; its answer is handled in `answer_dialog`.
-    fn ask_file(&mut self, ctx: &egui::Context, ask: Ask, pick: impl FnOnce() -> Option<PathBuf> + Send + 'static) {
+    fn ask_file(
+        &mut self,
+        ctx: &egui::Context,
+        ask: Ask,
+        pick: impl FnOnce() -> Option<PathBuf> + Send + 'static,
+    ) {
         let c = ctx.clone();
         if !self.dialog.open(ask, move || c.request_repaint(), pick) {
             self.status.message = Some(("A file dialog is open already; finish it first.".into(), true));
@@ -446,7 +491,9 @@ impl NoblescopeApp {
 
     /// Acts on the file dialog's answer once it has closed.
     fn answer_dialog(&mut self, ctx: &egui::Context) {
-        let Some((ask, path)) = self.dialog.poll() else { return };
+        let Some((ask, path)) = self.dialog.poll() else {
+            return;
+        };
         let Some(path) = path else {
             // Cancelled: a leave question waiting on the save is asked again.
             if let Ask::SaveSetup { then: Some(leave) } = ask {
@@ -469,7 +516,10 @@ impl NoblescopeApp {
     fn save_setup(&mut self, ctx: &egui::Context, ask: bool, then: Option<Leave>) {
         let (_, errors) = self.form.draft();
         if !errors.is_empty() {
-            self.status.message = Some(("The form has fields that are not numbers; fix them before saving.".into(), true));
+            self.status.message = Some((
+                "The form has fields that are not numbers; fix them before saving.".into(),
+                true,
+            ));
             self.leave = then;
             return;
         }
@@ -480,7 +530,9 @@ impl NoblescopeApp {
             }
             _ => {
                 let current = self.setup_path.clone();
-                self.ask_file(ctx, Ask::SaveSetup { then }, move || files::pick_setup_to_save(current.as_deref()));
+                self.ask_file(ctx, Ask::SaveSetup { then }, move || {
+                    files::pick_setup_to_save(current.as_deref())
+                });
             }
         }
     }
@@ -507,8 +559,13 @@ impl NoblescopeApp {
         let (samples, stride) = self.plots.export_log();
         match files::write_csv(path, samples, self.plots.units()) {
             Ok(n) => {
-                let note = if stride > 1 { format!(" (long run: every {stride}th sample kept)") } else { String::new() };
-                self.status.message = Some((format!("Exported {n} samples to {}{note}", path.display()), false));
+                let note = if stride > 1 {
+                    format!(" (long run: every {stride}th sample kept)")
+                } else {
+                    String::new()
+                };
+                self.status.message =
+                    Some((format!("Exported {n} samples to {}{note}", path.display()), false));
             }
             Err(e) => self.status.message = Some((format!("Could not export: {e}"), true)),
         }
@@ -542,7 +599,11 @@ impl NoblescopeApp {
                 !typing && i.consume_key(egui::Modifiers::NONE, egui::Key::Space),
                 !typing && i.consume_key(egui::Modifiers::NONE, egui::Key::S),
                 !typing && i.consume_key(egui::Modifiers::NONE, egui::Key::R),
-                i.consume_key(egui::Modifiers::NONE, egui::Key::F1) || (!typing && i.events.iter().any(|e| matches!(e, egui::Event::Text(t) if t == "?"))),
+                i.consume_key(egui::Modifiers::NONE, egui::Key::F1)
+                    || (!typing
+                        && i.events
+                            .iter()
+                            .any(|e| matches!(e, egui::Event::Text(t) if t == "?"))),
                 i.consume_key(cmd, egui::Key::O),
                 i.consume_key(cmd, egui::Key::S),
                 i.consume_key(cmd, egui::Key::P),
@@ -636,17 +697,27 @@ impl NoblescopeApp {
             if ui.button("Step").on_hover_text("S: one step").clicked() {
                 self.send(Command::StepOnce);
             }
-            if ui.button("Reset").on_hover_text("R: restart the present setup from step 0").clicked() {
+            if ui
+                .button("Reset")
+                .on_hover_text("R: restart the present setup from step 0")
+                .clicked()
+            {
                 self.send(Command::Reset);
             }
             ui.separator();
-            ui.toggle_value(&mut self.form_open, "Setup form").on_hover_text("Ctrl+3: show or hide the setup form");
-            ui.toggle_value(&mut self.tuning_open, "Tuning").on_hover_text("scan timesteps and cutoffs before a long run");
+            ui.toggle_value(&mut self.form_open, "Setup form")
+                .on_hover_text("Ctrl+3: show or hide the setup form");
+            ui.toggle_value(&mut self.tuning_open, "Tuning")
+                .on_hover_text("scan timesteps and cutoffs before a long run");
             if ui.button("Help").on_hover_text("F1").clicked() {
                 self.help_open = !self.help_open;
             }
             ui.separator();
-            let title = if self.running.title.is_empty() { "untitled setup".to_string() } else { self.running.title.clone() };
+            let title = if self.running.title.is_empty() {
+                "untitled setup".to_string()
+            } else {
+                self.running.title.clone()
+            };
             let edited = if self.has_unkept_edits() { " · edited" } else { "" };
             ui.weak(format!("{title} · {} atoms{edited}", self.atoms));
         });
@@ -692,7 +763,9 @@ impl NoblescopeApp {
         if self.watch_done {
             return;
         }
-        let Some((plan, rec, _)) = &mut self.watch else { return };
+        let Some((plan, rec, _)) = &mut self.watch else {
+            return;
+        };
         if plan.run && self.frames_drawn == 1 {
             if let Some(e) = &self.engine {
                 e.send(Command::Run);
@@ -702,7 +775,11 @@ impl NoblescopeApp {
         let Some(n) = plan.frames else { return };
         rec.frame(Instant::now());
         // With `--view tuning` the picture waits for the scan's results.
-        if self.shot_target.is_some() || rec.measured() < n as usize || self.tune_at_start || self.tuning.scanning() {
+        if self.shot_target.is_some()
+            || rec.measured() < n as usize
+            || self.tune_at_start
+            || self.tuning.scanning()
+        {
             return;
         }
         match plan.screenshot.clone() {
@@ -720,7 +797,9 @@ impl NoblescopeApp {
     }
 
     fn finish_watch(&mut self, ctx: &egui::Context, shot: Option<Result<String, String>>) {
-        let Some((plan, rec, view)) = &self.watch else { return };
+        let Some((plan, rec, view)) = &self.watch else {
+            return;
+        };
         let shot_name = match &shot {
             Some(Ok(p)) => Some(p.clone()),
             Some(Err(e)) => {
@@ -732,7 +811,11 @@ impl NoblescopeApp {
         let report = rec.report(self.atoms, view, shot_name);
         eprintln!(
             "watch: {} frames, frame time p50 {:.1} ms, p95 {:.1} ms, max {:.1} ms; {:.3e} atom-steps/s while displayed",
-            report.frames, report.frame_time_p50_ms, report.frame_time_p95_ms, report.frame_time_max_ms, report.atom_steps_per_second
+            report.frames,
+            report.frame_time_p50_ms,
+            report.frame_time_p95_ms,
+            report.frame_time_max_ms,
+            report.atom_steps_per_second
         );
         if let Some(path) = &plan.report {
             let text = serde_json::to_string_pretty(&report).expect("a report serialises");
@@ -785,7 +868,13 @@ impl NoblescopeApp {
             ctx.send_viewport_cmd(egui::ViewportCommand::CancelClose);
             self.leave = Some(Leave::Close);
         }
-        let dropped: Option<PathBuf> = ctx.input(|i| i.raw.dropped_files.iter().map(|f| f.path().to_path_buf()).find(|p| !p.as_os_str().is_empty()));
+        let dropped: Option<PathBuf> = ctx.input(|i| {
+            i.raw
+                .dropped_files
+                .iter()
+                .map(|f| f.path().to_path_buf())
+                .find(|p| !p.as_os_str().is_empty())
+        });
         if let Some(p) = dropped {
             self.request_leave(&ctx, Leave::OpenPath(p));
         }
@@ -794,24 +883,37 @@ impl NoblescopeApp {
         // software renderers a full-window blend per panel.
         let bare = |f: egui::Frame| f.fill(egui::Color32::TRANSPARENT);
         let style = ui.style().clone();
-        egui::Panel::top("top-bar").frame(bare(egui::Frame::side_top_panel(&style))).show(ui, |ui| self.top_bar(ui));
-        egui::Panel::bottom("status-bar").frame(bare(egui::Frame::side_top_panel(&style))).show(ui, |ui| {
-            self.status.show(ui, self.running.units());
-            ui.horizontal_wrapped(|ui| {
-                ui.label(egui::RichText::new("About these numbers:").small().color(palette::CAUTION_TEXT));
-                ui.label(egui::RichText::new(MODEL_CAUTION).small().weak());
-            });
-        });
-        if self.form_open {
-            egui::Panel::left("setup-form").frame(bare(egui::Frame::side_top_panel(&style))).resizable(true).default_size(430.0).min_size(300.0).show(ui, |ui| {
-                ui.heading("Setup");
-                egui::ScrollArea::vertical().show(ui, |ui| {
-                    let running = self.running.clone();
-                    if let Some(a) = self.form.show(ui, &running) {
-                        self.apply_form(a);
-                    }
+        egui::Panel::top("top-bar")
+            .frame(bare(egui::Frame::side_top_panel(&style)))
+            .show(ui, |ui| self.top_bar(ui));
+        egui::Panel::bottom("status-bar")
+            .frame(bare(egui::Frame::side_top_panel(&style)))
+            .show(ui, |ui| {
+                self.status.show(ui, self.running.units());
+                ui.horizontal_wrapped(|ui| {
+                    ui.label(
+                        egui::RichText::new("About these numbers:")
+                            .small()
+                            .color(palette::CAUTION_TEXT),
+                    );
+                    ui.label(egui::RichText::new(MODEL_CAUTION).small().weak());
                 });
             });
+        if self.form_open {
+            egui::Panel::left("setup-form")
+                .frame(bare(egui::Frame::side_top_panel(&style)))
+                .resizable(true)
+                .default_size(430.0)
+                .min_size(300.0)
+                .show(ui, |ui| {
+                    ui.heading("Setup");
+                    egui::ScrollArea::vertical().show(ui, |ui| {
+                        let running = self.running.clone();
+                        if let Some(a) = self.form.show(ui, &running) {
+                            self.apply_form(a);
+                        }
+                    });
+                });
         }
         if self.tuning_open {
             if self.tune_at_start && self.atoms > 0 {
@@ -824,45 +926,73 @@ impl NoblescopeApp {
                     Err(e) => self.tuning.rejected(e),
                 }
             }
-            egui::Panel::right("tuning-panel").frame(bare(egui::Frame::side_top_panel(&style))).resizable(true).default_size(580.0).min_size(380.0).show(ui, |ui| {
-                ui.heading("Timestep and cutoff tuning");
-                egui::ScrollArea::vertical().show(ui, |ui| {
-                    let running = self.running.clone();
-                    if let Some(a) = self.tuning.show(ui, &running) {
-                        self.tuning_action(a);
-                    }
+            egui::Panel::right("tuning-panel")
+                .frame(bare(egui::Frame::side_top_panel(&style)))
+                .resizable(true)
+                .default_size(580.0)
+                .min_size(380.0)
+                .show(ui, |ui| {
+                    ui.heading("Timestep and cutoff tuning");
+                    egui::ScrollArea::vertical().show(ui, |ui| {
+                        let running = self.running.clone();
+                        if let Some(a) = self.tuning.show(ui, &running) {
+                            self.tuning_action(a);
+                        }
+                    });
                 });
-            });
         }
-        egui::CentralPanel::default().frame(bare(egui::Frame::central_panel(&style))).show(ui, |ui| {
-            if self.status.alarm_banner(ui) {
-                self.send(Command::Rewind);
-            }
-            for note in self.running.cautions() {
-                ui.colored_label(palette::CAUTION_TEXT, format!("Note: {note}"));
-            }
-            let h = ui.available_height();
-            let w = ui.available_width();
-            let units = self.running.units();
-            ui.allocate_ui(egui::vec2(w, (h * 0.56).max(200.0)), |ui| self.view.show(ui, &self.frame, units));
-            ui.separator();
-            self.plots.show(ui);
-        });
+        egui::CentralPanel::default()
+            .frame(bare(egui::Frame::central_panel(&style)))
+            .show(ui, |ui| {
+                if self.status.alarm_banner(ui) {
+                    self.send(Command::Rewind);
+                }
+                for note in self.running.cautions() {
+                    ui.colored_label(palette::CAUTION_TEXT, format!("Note: {note}"));
+                }
+                let h = ui.available_height();
+                let w = ui.available_width();
+                let units = self.running.units();
+                ui.allocate_ui(egui::vec2(w, (h * 0.56).max(200.0)), |ui| {
+                    self.view.show(ui, &self.frame, units)
+                });
+                ui.separator();
+                self.plots.show(ui);
+            });
         help::show(&ctx, &mut self.help_open);
         self.confirm_leave(&ctx);
         if ctx.input(|i| !i.raw.hovered_files.is_empty()) {
             let screen = ctx.content_rect();
-            let painter = ctx.layer_painter(egui::LayerId::new(egui::Order::Foreground, egui::Id::unique("drop-hint")));
+            let painter = ctx.layer_painter(egui::LayerId::new(
+                egui::Order::Foreground,
+                egui::Id::unique("drop-hint"),
+            ));
             painter.rect_filled(screen, 0.0, egui::Color32::from_black_alpha(170));
-            painter.text(screen.center(), egui::Align2::CENTER_CENTER, "Drop a setup file (.ron) to open it", egui::FontId::proportional(22.0), egui::Color32::WHITE);
+            painter.text(
+                screen.center(),
+                egui::Align2::CENTER_CENTER,
+                "Drop a setup file (.ron) to open it",
+                egui::FontId::proportional(22.0),
+                egui::Color32::WHITE,
+            );
         }
     }
 
     fn store(&self, storage: &mut dyn eframe::Storage) {
         let (draft, errors) = self.form.draft();
-        let setup = if errors.is_empty() && draft.resolve().is_ok() { draft } else { self.running.clone() };
+        let setup = if errors.is_empty() && draft.resolve().is_ok() {
+            draft
+        } else {
+            self.running.clone()
+        };
         storage.set_string(STORAGE_SETUP, setup.to_ron());
-        storage.set_string(STORAGE_PATH, self.setup_path.as_ref().map(|p| p.display().to_string()).unwrap_or_default());
+        storage.set_string(
+            STORAGE_PATH,
+            self.setup_path
+                .as_ref()
+                .map(|p| p.display().to_string())
+                .unwrap_or_default(),
+        );
         if let Ok(v) = ron::to_string(&self.view.settings) {
             storage.set_string(STORAGE_VIEW, v);
         }

@@ -54,7 +54,14 @@ impl Culler {
     /// `width`×`height` pixel view, nearest first (smallest `depth` first). `project(i)` gives
     /// the atom on screen, or `None` if it is not drawn (behind the camera, outside a slab).
     /// Returns how many atoms `project` placed (on screen or not).
-    pub fn run(&mut self, n: usize, width: usize, height: usize, project: impl Fn(usize) -> Option<Projected>, mut keep: impl FnMut(usize)) -> usize {
+    pub fn run(
+        &mut self,
+        n: usize,
+        width: usize,
+        height: usize,
+        project: impl Fn(usize) -> Option<Projected>,
+        mut keep: impl FnMut(usize),
+    ) -> usize {
         let (w, h) = (width.max(1), height.max(1));
         self.cover.reset(w, h);
         self.order.clear();
@@ -64,8 +71,15 @@ impl Culler {
         for i in 0..n {
             let Some(p) = project(i) else { continue };
             placed += 1;
-            if p.depth.is_finite() && p.r > 0.0 && p.x + p.r >= 0.0 && p.x - p.r <= wf && p.y + p.r >= 0.0 && p.y - p.r <= hf {
-                self.order.push((order_key(p.depth) as u64) << 32 | self.discs.len() as u64);
+            if p.depth.is_finite()
+                && p.r > 0.0
+                && p.x + p.r >= 0.0
+                && p.x - p.r <= wf
+                && p.y + p.r >= 0.0
+                && p.y - p.r <= hf
+            {
+                self.order
+                    .push((order_key(p.depth) as u64) << 32 | self.discs.len() as u64);
                 self.discs.push((p, i as u32));
             }
         }
@@ -127,8 +141,12 @@ impl Coverage {
         let (w, h, words) = (self.w, self.h, self.words);
         let outer = p.r + MARGIN_PX;
         let inner = p.r - MARGIN_PX;
-        let Some((r0, r1)) = span(p.y, outer, h) else { return false };
-        let Some((c0, c1)) = span(p.x, outer, w) else { return false };
+        let Some((r0, r1)) = span(p.y, outer, h) else {
+            return false;
+        };
+        let Some((c0, c1)) = span(p.x, outer, w) else {
+            return false;
+        };
         if self.all_full(r0, r1, c0, c1) {
             return false;
         }
@@ -155,7 +173,8 @@ impl Coverage {
                 for t in r0 / TILE_ROWS..=r1 / TILE_ROWS {
                     for k in k0..=k1.min(words - 1) {
                         let rows = t * TILE_ROWS..((t + 1) * TILE_ROWS).min(h);
-                        self.full[t * words + k] = rows.into_iter().all(|row| bits[row * words + k] == u64::MAX);
+                        self.full[t * words + k] =
+                            rows.into_iter().all(|row| bits[row * words + k] == u64::MAX);
                     }
                 }
             }
@@ -166,8 +185,16 @@ impl Coverage {
 
 /// Calls `f(row, c0, c1)` for each row of a `w`×`h` view whose pixel centres `c0..=c1` lie
 /// within `radius` of the centre of `p`, until `f` returns true; returns whether it did.
-fn disc_rows(p: &Projected, radius: f32, w: usize, h: usize, mut f: impl FnMut(usize, usize, usize) -> bool) -> bool {
-    let Some((r0, r1)) = span(p.y, radius, h) else { return false };
+fn disc_rows(
+    p: &Projected,
+    radius: f32,
+    w: usize,
+    h: usize,
+    mut f: impl FnMut(usize, usize, usize) -> bool,
+) -> bool {
+    let Some((r0, r1)) = span(p.y, radius, h) else {
+        return false;
+    };
     for row in r0..=r1 {
         let dy = row as f32 + 0.5 - p.y;
         let s = radius * radius - dy * dy;
@@ -175,9 +202,10 @@ fn disc_rows(p: &Projected, radius: f32, w: usize, h: usize, mut f: impl FnMut(u
             continue;
         }
         if let Some((c0, c1)) = span(p.x, s.sqrt(), w)
-            && f(row, c0, c1) {
-                return true;
-            }
+            && f(row, c0, c1)
+        {
+            return true;
+        }
     }
     false
 }
@@ -234,24 +262,45 @@ mod tests {
 
     #[test]
     fn drops_an_atom_right_behind_another() {
-        assert_eq!(kept(&[at(100.0, 100.0, 20.0, 5.0), at(100.0, 100.0, 8.0, 9.0)]), vec![0]);
+        assert_eq!(
+            kept(&[at(100.0, 100.0, 20.0, 5.0), at(100.0, 100.0, 8.0, 9.0)]),
+            vec![0]
+        );
     }
 
     #[test]
     fn keeps_an_atom_that_peeks_out() {
-        assert_eq!(kept(&[at(100.0, 100.0, 20.0, 5.0), at(118.0, 100.0, 8.0, 9.0)]), vec![0, 1]);
+        assert_eq!(
+            kept(&[at(100.0, 100.0, 20.0, 5.0), at(118.0, 100.0, 8.0, 9.0)]),
+            vec![0, 1]
+        );
     }
 
     #[test]
     fn reports_nearest_first_whatever_the_index_order() {
-        assert_eq!(kept(&[at(100.0, 100.0, 8.0, 9.0), at(100.0, 100.0, 20.0, 5.0)]), vec![1]);
-        assert_eq!(kept(&[at(10.0, 10.0, 5.0, 9.0), at(100.0, 100.0, 5.0, 5.0), at(150.0, 10.0, 5.0, 7.0)]), vec![1, 2, 0]);
+        assert_eq!(
+            kept(&[at(100.0, 100.0, 8.0, 9.0), at(100.0, 100.0, 20.0, 5.0)]),
+            vec![1]
+        );
+        assert_eq!(
+            kept(&[
+                at(10.0, 10.0, 5.0, 9.0),
+                at(100.0, 100.0, 5.0, 5.0),
+                at(150.0, 10.0, 5.0, 7.0)
+            ]),
+            vec![1, 2, 0]
+        );
     }
 
     #[test]
     fn a_disc_hidden_by_several_nearer_ones_is_dropped() {
         // Four overlapping discs in front cover the one behind them together, none alone.
-        let front = [at(95.0, 95.0, 9.0, 5.0), at(105.0, 95.0, 9.0, 5.0), at(95.0, 105.0, 9.0, 5.0), at(105.0, 105.0, 9.0, 5.0)];
+        let front = [
+            at(95.0, 95.0, 9.0, 5.0),
+            at(105.0, 95.0, 9.0, 5.0),
+            at(95.0, 105.0, 9.0, 5.0),
+            at(105.0, 105.0, 9.0, 5.0),
+        ];
         let mut atoms = front.to_vec();
         atoms.push(at(100.0, 100.0, 7.0, 8.0));
         assert_eq!(kept(&atoms), vec![0, 1, 2, 3]);
@@ -262,14 +311,32 @@ mod tests {
 
     #[test]
     fn drops_atoms_off_screen_or_not_drawn() {
-        assert_eq!(kept(&[at(-50.0, 100.0, 10.0, 5.0), None, at(5.0, 5.0, 10.0, 5.0), at(100.0, 300.0, 10.0, 1.0)]), vec![2]);
+        assert_eq!(
+            kept(&[
+                at(-50.0, 100.0, 10.0, 5.0),
+                None,
+                at(5.0, 5.0, 10.0, 5.0),
+                at(100.0, 300.0, 10.0, 1.0)
+            ]),
+            vec![2]
+        );
     }
 
     #[test]
     fn negative_depths_order_too() {
         // Orthographic views measure depth from the slab centre.
-        assert_eq!(kept(&[at(100.0, 100.0, 8.0, 0.5), at(100.0, 100.0, 20.0, -0.5)]), vec![1]);
-        assert_eq!(kept(&[at(100.0, 100.0, 8.0, -0.7), at(100.0, 100.0, 20.0, -0.5), at(130.0, 100.0, 5.0, -2.0)]), vec![2, 0, 1]);
+        assert_eq!(
+            kept(&[at(100.0, 100.0, 8.0, 0.5), at(100.0, 100.0, 20.0, -0.5)]),
+            vec![1]
+        );
+        assert_eq!(
+            kept(&[
+                at(100.0, 100.0, 8.0, -0.7),
+                at(100.0, 100.0, 20.0, -0.5),
+                at(130.0, 100.0, 5.0, -2.0)
+            ]),
+            vec![2, 0, 1]
+        );
     }
 
     #[test]
@@ -293,7 +360,11 @@ mod tests {
     fn wide_views_use_several_words_per_row() {
         let mut c = Culler::new();
         let mut out = Vec::new();
-        let atoms = [at(130.0, 10.0, 60.0, 5.0), at(130.0, 10.0, 30.0, 6.0), at(300.0, 10.0, 3.0, 6.0)];
+        let atoms = [
+            at(130.0, 10.0, 60.0, 5.0),
+            at(130.0, 10.0, 30.0, 6.0),
+            at(300.0, 10.0, 3.0, 6.0),
+        ];
         c.run(atoms.len(), 400, 40, |i| atoms[i], |i| out.push(i));
         assert_eq!(out, vec![0, 2]);
     }
@@ -310,7 +381,16 @@ mod tests {
             s ^= s << 17;
             (s >> 11) as f32 / (1u64 << 53) as f32
         };
-        let atoms: Vec<Option<Projected>> = (0..600).map(|_| at(rnd() * 110.0 - 5.0, rnd() * 70.0 - 5.0, 0.7 + rnd() * 5.0, 1.0 + rnd() * 10.0)).collect();
+        let atoms: Vec<Option<Projected>> = (0..600)
+            .map(|_| {
+                at(
+                    rnd() * 110.0 - 5.0,
+                    rnd() * 70.0 - 5.0,
+                    0.7 + rnd() * 5.0,
+                    1.0 + rnd() * 10.0,
+                )
+            })
+            .collect();
         let mut owner = vec![(f32::INFINITY, usize::MAX); w * h];
         for (i, a) in atoms.iter().enumerate() {
             let p = a.unwrap();
@@ -326,12 +406,23 @@ mod tests {
         let mut c = Culler::new();
         let mut out = Vec::new();
         c.run(atoms.len(), w, h, |i| atoms[i], |i| out.push(i));
-        let visible: std::collections::BTreeSet<usize> = owner.iter().filter(|o| o.1 != usize::MAX).map(|o| o.1).collect();
+        let visible: std::collections::BTreeSet<usize> =
+            owner.iter().filter(|o| o.1 != usize::MAX).map(|o| o.1).collect();
         for v in &visible {
             assert!(out.contains(v), "atom {v} owns a pixel but was dropped");
         }
         // And the pass does cull: most of a crowded field is hidden.
-        assert!(out.len() < atoms.len() * 3 / 4, "{} of {} kept", out.len(), atoms.len());
-        assert!(out.len() <= visible.len() + visible.len() / 2, "{} kept, {} visible", out.len(), visible.len());
+        assert!(
+            out.len() < atoms.len() * 3 / 4,
+            "{} of {} kept",
+            out.len(),
+            atoms.len()
+        );
+        assert!(
+            out.len() <= visible.len() + visible.len() / 2,
+            "{} kept, {} visible",
+            out.len(),
+            visible.len()
+        );
     }
 }

@@ -29,7 +29,12 @@ impl<T> Dialog<T> {
     /// nothing, if a dialog is open already. On Linux `pick` runs on its own thread (the portal
     /// and zenity dialogs rfd uses there may run on any thread); elsewhere native dialogs
     /// belong to the main thread, so it runs at once.
-    pub fn open(&mut self, purpose: T, wake: impl FnOnce() + Send + 'static, pick: impl FnOnce() -> Option<PathBuf> + Send + 'static) -> bool {
+    pub fn open(
+        &mut self,
+        purpose: T,
+        wake: impl FnOnce() + Send + 'static,
+        pick: impl FnOnce() -> Option<PathBuf> + Send + 'static,
+    ) -> bool {
         if self.pending.is_some() {
             return false;
         }
@@ -40,7 +45,9 @@ impl<T> Dialog<T> {
         };
         if cfg!(target_os = "linux") {
             // If the thread cannot start, the sender is dropped and `poll` reports no file.
-            let _ = std::thread::Builder::new().name("noblescope-file-dialog".into()).spawn(job);
+            let _ = std::thread::Builder::new()
+                .name("noblescope-file-dialog".into())
+                .spawn(job);
         } else {
             job();
         }
@@ -63,12 +70,17 @@ impl<T> Dialog<T> {
 
 /// Asks for a setup file to open.
 pub fn pick_setup_to_open() -> Option<PathBuf> {
-    rfd::FileDialog::new().set_title("Open a setup").add_filter("setup (RON)", &["ron"]).pick_file()
+    rfd::FileDialog::new()
+        .set_title("Open a setup")
+        .add_filter("setup (RON)", &["ron"])
+        .pick_file()
 }
 
 /// Asks where to save a setup.
 pub fn pick_setup_to_save(current: Option<&Path>) -> Option<PathBuf> {
-    let mut d = rfd::FileDialog::new().set_title("Save the setup").add_filter("setup (RON)", &["ron"]);
+    let mut d = rfd::FileDialog::new()
+        .set_title("Save the setup")
+        .add_filter("setup (RON)", &["ron"]);
     if let Some(name) = current.and_then(|p| p.file_name()) {
         d = d.set_file_name(name.to_string_lossy());
     } else {
@@ -79,22 +91,37 @@ pub fn pick_setup_to_save(current: Option<&Path>) -> Option<PathBuf> {
 
 /// Asks for a checkpoint to load.
 pub fn pick_checkpoint_to_open() -> Option<PathBuf> {
-    rfd::FileDialog::new().set_title("Load a checkpoint").add_filter("checkpoint", &["checkpoint"]).pick_file()
+    rfd::FileDialog::new()
+        .set_title("Load a checkpoint")
+        .add_filter("checkpoint", &["checkpoint"])
+        .pick_file()
 }
 
 /// Asks where to save a checkpoint.
 pub fn pick_checkpoint_to_save() -> Option<PathBuf> {
-    rfd::FileDialog::new().set_title("Save a checkpoint").add_filter("checkpoint", &["checkpoint"]).set_file_name("window.checkpoint").save_file()
+    rfd::FileDialog::new()
+        .set_title("Save a checkpoint")
+        .add_filter("checkpoint", &["checkpoint"])
+        .set_file_name("window.checkpoint")
+        .save_file()
 }
 
 /// Asks where to export the energy log.
 pub fn pick_csv_to_save() -> Option<PathBuf> {
-    rfd::FileDialog::new().set_title("Export the energy log").add_filter("CSV", &["csv"]).set_file_name("energy.csv").save_file()
+    rfd::FileDialog::new()
+        .set_title("Export the energy log")
+        .add_filter("CSV", &["csv"])
+        .set_file_name("energy.csv")
+        .save_file()
 }
 
 /// Asks where to save a picture of the window.
 pub fn pick_png_to_save() -> Option<PathBuf> {
-    rfd::FileDialog::new().set_title("Save a picture of the window").add_filter("PNG", &["png"]).set_file_name("noblescope.png").save_file()
+    rfd::FileDialog::new()
+        .set_title("Save a picture of the window")
+        .add_filter("PNG", &["png"])
+        .set_file_name("noblescope.png")
+        .save_file()
 }
 
 /// Reads a setup file; the error names the file (and line for syntax errors).
@@ -109,7 +136,8 @@ pub fn write_setup(path: &Path, setup: &Setup) -> Result<(), String> {
 
 /// Writes the energy log; returns how many rows were written.
 pub fn write_csv(path: &Path, samples: &[Observables], units: UnitSystem) -> Result<usize, String> {
-    std::fs::write(path, crate::io::energy_log::to_csv(samples, units)).map_err(|e| format!("{}: {e}", path.display()))?;
+    std::fs::write(path, crate::io::energy_log::to_csv(samples, units))
+        .map_err(|e| format!("{}: {e}", path.display()))?;
     Ok(samples.len())
 }
 
@@ -168,15 +196,24 @@ mod tests {
         let mut d = Dialog::default();
         let (gate_tx, gate_rx) = mpsc::channel::<()>();
         let (woke_tx, woke_rx) = mpsc::channel();
-        assert!(d.open("open", move || woke_tx.send(()).unwrap(), move || {
-            let _ = gate_rx.recv();
-            Some(PathBuf::from("a.ron"))
-        }));
+        assert!(d.open(
+            "open",
+            move || woke_tx.send(()).unwrap(),
+            move || {
+                let _ = gate_rx.recv();
+                Some(PathBuf::from("a.ron"))
+            }
+        ));
         assert!(d.is_open());
-        assert!(!d.open("save", || {}, || Some(PathBuf::from("b.ron"))), "a second dialog opened");
+        assert!(
+            !d.open("save", || {}, || Some(PathBuf::from("b.ron"))),
+            "a second dialog opened"
+        );
         let _ = gate_tx.send(());
         assert_eq!(wait(&mut d), ("open", Some(PathBuf::from("a.ron"))));
-        woke_rx.recv_timeout(std::time::Duration::from_secs(10)).expect("the window was woken");
+        woke_rx
+            .recv_timeout(std::time::Duration::from_secs(10))
+            .expect("the window was woken");
         assert!(!d.is_open());
         assert!(d.poll().is_none());
         // Cancelled, and a dialog that failed outright: no file, purpose kept, none left open.

@@ -153,10 +153,20 @@ impl Gl {
     unsafe fn new(gl: &glow::Context) -> Result<Gl, String> {
         let version = egui_glow::ShaderVersion::get(gl);
         if !version.is_new_shader_interface() {
-            return Err(format!("OpenGL shader version {version:?} is too old for the sphere view (need GLSL 1.40 or ES 3.00)"));
+            return Err(format!(
+                "OpenGL shader version {version:?} is too old for the sphere view (need GLSL 1.40 or ES 3.00)"
+            ));
         }
         let embedded = version.is_embedded();
-        let prefix = format!("{}{}", version.version_declaration(), if embedded { "precision mediump float;\n" } else { "" });
+        let prefix = format!(
+            "{}{}",
+            version.version_declaration(),
+            if embedded {
+                "precision mediump float;\n"
+            } else {
+                ""
+            }
+        );
         unsafe {
             let program = gl.create_program()?;
             let mut shaders = Vec::new();
@@ -228,7 +238,8 @@ impl Gl {
             gl.bind_vertex_array(Some(self.vao));
             gl.bind_buffer(glow::ARRAY_BUFFER, Some(self.vbo));
             if self.uploaded != scene.generation {
-                let bytes: &[u8] = std::slice::from_raw_parts(scene.vertices.as_ptr().cast(), scene.vertices.len() * 4);
+                let bytes: &[u8] =
+                    std::slice::from_raw_parts(scene.vertices.as_ptr().cast(), scene.vertices.len() * 4);
                 if bytes.len() > self.capacity {
                     gl.buffer_data_u8_slice(glow::ARRAY_BUFFER, bytes, glow::DYNAMIC_DRAW);
                     self.capacity = bytes.len();

@@ -33,7 +33,11 @@ pub fn ramp(t: f32) -> [f32; 3] {
     let i = (x.floor() as usize).min(RAMP.len() - 2);
     let f = x - i as f32;
     let (a, b) = (RAMP[i], RAMP[i + 1]);
-    [a[0] + (b[0] - a[0]) * f, a[1] + (b[1] - a[1]) * f, a[2] + (b[2] - a[2]) * f]
+    [
+        a[0] + (b[0] - a[0]) * f,
+        a[1] + (b[1] - a[1]) * f,
+        a[2] + (b[2] - a[2]) * f,
+    ]
 }
 
 /// [`ramp`] as an egui colour.
@@ -93,7 +97,10 @@ mod tests {
         let mut ls: Vec<f32> = Species::ALL.iter().map(|&s| lightness(species_rgb(s))).collect();
         ls.sort_by(|a, b| a.partial_cmp(b).unwrap());
         for w in ls.windows(2) {
-            assert!(w[1] - w[0] > 0.02, "two species are too close in lightness: {ls:?}");
+            assert!(
+                w[1] - w[0] > 0.02,
+                "two species are too close in lightness: {ls:?}"
+            );
         }
     }
 

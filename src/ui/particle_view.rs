@@ -41,7 +41,12 @@ pub struct Orbit {
 
 impl Default for Orbit {
     fn default() -> Self {
-        Orbit { yaw: 0.65, pitch: 0.42, distance: 2.1, pan: [0.0; 3] }
+        Orbit {
+            yaw: 0.65,
+            pitch: 0.42,
+            distance: 2.1,
+            pan: [0.0; 3],
+        }
     }
 }
 
@@ -58,7 +63,13 @@ pub struct ViewSettings {
 
 impl Default for ViewSettings {
     fn default() -> Self {
-        ViewSettings { mode: ViewMode::Box3d, colour_by: ColourBy::Species, orbit: Orbit::default(), slab: Slab::default(), size: 0.42 }
+        ViewSettings {
+            mode: ViewMode::Box3d,
+            colour_by: ColourBy::Species,
+            orbit: Orbit::default(),
+            slab: Slab::default(),
+            size: 0.42,
+        }
     }
 }
 
@@ -81,7 +92,16 @@ pub struct ParticleView {
 impl ParticleView {
     /// A view with the given settings.
     pub fn new(settings: ViewSettings) -> Self {
-        ParticleView { settings, renderer: SphereRenderer::new(), filled_for: None, culler: Culler::new(), kept: Vec::new(), placed: 0, scale_max: 1.0, shown: 0 }
+        ParticleView {
+            settings,
+            renderer: SphereRenderer::new(),
+            filled_for: None,
+            culler: Culler::new(),
+            kept: Vec::new(),
+            placed: 0,
+            scale_max: 1.0,
+            shown: 0,
+        }
     }
 
     /// The renderer (to free its GL objects on exit).
@@ -106,19 +126,39 @@ impl ParticleView {
         self.fill(frame, rect, ppp);
         let painter = ui.painter_at(rect);
         if frame.is_empty() {
-            painter.text(rect.center(), egui::Align2::CENTER_CENTER, "waiting for the first frame…", egui::FontId::proportional(15.0), palette::BOX_LINE);
+            painter.text(
+                rect.center(),
+                egui::Align2::CENTER_CENTER,
+                "waiting for the first frame…",
+                egui::FontId::proportional(15.0),
+                palette::BOX_LINE,
+            );
         } else {
             painter.add(self.renderer.callback(rect));
             self.outline(&painter, rect, frame.box_length);
         }
         if let Some(e) = self.renderer.failure() {
-            painter.text(rect.center(), egui::Align2::CENTER_CENTER, e, egui::FontId::proportional(14.0), palette::ERROR_TEXT);
+            painter.text(
+                rect.center(),
+                egui::Align2::CENTER_CENTER,
+                e,
+                egui::FontId::proportional(14.0),
+                palette::ERROR_TEXT,
+            );
         }
         let hint = match self.settings.mode {
-            ViewMode::Box3d => "drag: turn · right-drag or shift-drag: move · wheel: zoom · double-click: reset",
+            ViewMode::Box3d => {
+                "drag: turn · right-drag or shift-drag: move · wheel: zoom · double-click: reset"
+            }
             ViewMode::Slab => "flat slab view: pick the axis, position and thickness above",
         };
-        painter.text(rect.left_bottom() + egui::vec2(8.0, -8.0), egui::Align2::LEFT_BOTTOM, hint, egui::FontId::proportional(11.5), palette::BOX_LINE);
+        painter.text(
+            rect.left_bottom() + egui::vec2(8.0, -8.0),
+            egui::Align2::LEFT_BOTTOM,
+            hint,
+            egui::FontId::proportional(11.5),
+            palette::BOX_LINE,
+        );
         self.legend(ui, frame, units);
     }
 
@@ -134,7 +174,12 @@ impl ParticleView {
             ui.selectable_value(&mut s.colour_by, ColourBy::Kinetic, "kinetic energy");
             ui.separator();
             let l = ui.label("Size");
-            ui.add(egui::Slider::new(&mut s.size, 0.1..=0.7).fixed_decimals(2).suffix(" σ")).labelled_by(l.id);
+            ui.add(
+                egui::Slider::new(&mut s.size, 0.1..=0.7)
+                    .fixed_decimals(2)
+                    .suffix(" σ"),
+            )
+            .labelled_by(l.id);
             if s.mode == ViewMode::Box3d && ui.button("Reset view").clicked() {
                 s.orbit = Orbit::default();
             }
@@ -157,7 +202,10 @@ impl ParticleView {
         if r.dragged_by(egui::PointerButton::Primary) && !shift {
             o.yaw -= d.x * 0.008;
             o.pitch = (o.pitch + d.y * 0.008).clamp(-1.5, 1.5);
-        } else if r.dragged_by(egui::PointerButton::Secondary) || r.dragged_by(egui::PointerButton::Middle) || (shift && r.dragged()) {
+        } else if r.dragged_by(egui::PointerButton::Secondary)
+            || r.dragged_by(egui::PointerButton::Middle)
+            || (shift && r.dragged())
+        {
             let (right, up, _) = basis(o);
             let k = o.distance / r.rect.height().max(1.0);
             let p = Vec3::from(o.pan) - right * d.x * k + up * d.y * k;
@@ -187,7 +235,11 @@ impl ParticleView {
             }
             ViewMode::Slab => {
                 let half = 0.55 * l;
-                let (hw, hh) = if aspect >= 1.0 { (half * aspect, half) } else { (half, half / aspect) };
+                let (hw, hh) = if aspect >= 1.0 {
+                    (half * aspect, half)
+                } else {
+                    (half, half / aspect)
+                };
                 let view = Mat4::from_translation(Vec3::new(-0.5 * l, -0.5 * l, 0.0));
                 let proj = glam::camera::rh::proj::opengl::orthographic(-hw, hw, -hh, hh, -l, l);
                 (view, proj, true)
@@ -201,7 +253,10 @@ impl ParticleView {
         let l = frame.box_length.max(1e-3);
         let (view, proj, ortho) = self.camera(rect, l);
         // The view in whole pixels, rounded as egui rounds the paint callback's viewport.
-        let px = [((rect.max.x * ppp).round() - (rect.min.x * ppp).round()).max(1.0) as u32, ((rect.max.y * ppp).round() - (rect.min.y * ppp).round()).max(1.0) as u32];
+        let px = [
+            ((rect.max.x * ppp).round() - (rect.min.x * ppp).round()).max(1.0) as u32,
+            ((rect.max.y * ppp).round() - (rect.min.y * ppp).round()).max(1.0) as u32,
+        ];
         let (w_px, h_px) = (px[0] as f32, px[1] as f32);
         // Pixels per σ at unit view distance (perspective) or everywhere (orthographic).
         let ppu = proj.y_axis.y * 0.5 * h_px;
@@ -227,7 +282,11 @@ impl ParticleView {
         let size = self.settings.size;
         let colour = |i: usize| -> [f32; 3] {
             match colour_by {
-                ColourBy::Species => frame.kinds.get(frame.types[i] as usize).map(|&k| palette::species_rgb(k)).unwrap_or([0.7; 3]),
+                ColourBy::Species => frame
+                    .kinds
+                    .get(frame.types[i] as usize)
+                    .map(|&k| palette::species_rgb(k))
+                    .unwrap_or([0.7; 3]),
                 ColourBy::Speed => palette::ramp(frame.speed[i] / scale),
                 ColourBy::Kinetic => palette::ramp(frame.kinetic[i] / scale),
             }
@@ -259,11 +318,20 @@ impl ParticleView {
             // As the vertex shader sizes the point sprite (never below 1.5 pixels).
             let s = if ortho { ppu } else { ppu / depth };
             let r = (radius(i) * s).max(0.75);
-            Some(Projected { x: (nx * 0.5 + 0.5) * w_px, y: (0.5 - ny * 0.5) * h_px, r, depth })
+            Some(Projected {
+                x: (nx * 0.5 + 0.5) * w_px,
+                y: (0.5 - ny * 0.5) * h_px,
+                r,
+                depth,
+            })
         };
         let kept = &mut self.kept;
         kept.clear();
-        self.placed = self.culler.run(frame.len(), px[0] as usize, px[1] as usize, project, |i| kept.push(i as u32));
+        self.placed = self
+            .culler
+            .run(frame.len(), px[0] as usize, px[1] as usize, project, |i| {
+                kept.push(i as u32)
+            });
         // Farthest first, so nearer sprites paint over farther ones.
         let v = &mut scene.vertices;
         v.clear();
@@ -289,23 +357,31 @@ impl ParticleView {
                 return None;
             }
             let ndc = c.truncate() / c.w;
-            Some(egui::pos2(rect.center().x + ndc.x * rect.width() * 0.5, rect.center().y - ndc.y * rect.height() * 0.5))
+            Some(egui::pos2(
+                rect.center().x + ndc.x * rect.width() * 0.5,
+                rect.center().y - ndc.y * rect.height() * 0.5,
+            ))
         };
         let stroke = egui::Stroke::new(1.2, palette::BOX_LINE);
         match self.settings.mode {
             ViewMode::Box3d => {
-                let corner = |i: u8| Vec3::new((i & 1) as f32, ((i >> 1) & 1) as f32, ((i >> 2) & 1) as f32) * l;
+                let corner =
+                    |i: u8| Vec3::new((i & 1) as f32, ((i >> 1) & 1) as f32, ((i >> 2) & 1) as f32) * l;
                 for a in 0u8..8 {
                     for bit in [1u8, 2, 4] {
                         if a & bit == 0
-                            && let (Some(p), Some(q)) = (to_screen(corner(a)), to_screen(corner(a | bit))) {
-                                painter.line_segment([p, q], stroke);
-                            }
+                            && let (Some(p), Some(q)) = (to_screen(corner(a)), to_screen(corner(a | bit)))
+                        {
+                            painter.line_segment([p, q], stroke);
+                        }
                     }
                 }
             }
             ViewMode::Slab => {
-                let pts: Vec<egui::Pos2> = [[0.0, 0.0], [l, 0.0], [l, l], [0.0, l]].iter().filter_map(|c| to_screen(Vec3::new(c[0], c[1], 0.0))).collect();
+                let pts: Vec<egui::Pos2> = [[0.0, 0.0], [l, 0.0], [l, l], [0.0, l]]
+                    .iter()
+                    .filter_map(|c| to_screen(Vec3::new(c[0], c[1], 0.0)))
+                    .collect();
                 if pts.len() == 4 {
                     painter.add(egui::Shape::closed_line(pts, stroke));
                 }
@@ -326,9 +402,21 @@ impl ParticleView {
                 ColourBy::Speed | ColourBy::Kinetic => {
                     let (name, unit, real) = if self.settings.colour_by == ColourBy::Speed {
                         let ms = units.sigma_angstrom() * 1e-10 / units.tau_seconds();
-                        ("speed", "σ/τ", units.has_real_units().then(|| format!("{:.0} m/s", self.scale_max as f64 * ms)))
+                        (
+                            "speed",
+                            "σ/τ",
+                            units
+                                .has_real_units()
+                                .then(|| format!("{:.0} m/s", self.scale_max as f64 * ms)),
+                        )
                     } else {
-                        ("kinetic energy", "ε", units.has_real_units().then(|| format!("{:.2} kJ/mol", self.scale_max as f64 * units.energy_kj_mol())))
+                        (
+                            "kinetic energy",
+                            "ε",
+                            units.has_real_units().then(|| {
+                                format!("{:.2} kJ/mol", self.scale_max as f64 * units.energy_kj_mol())
+                            }),
+                        )
                     };
                     ui.label(format!("{name}: 0"));
                     let (rect, _) = ui.allocate_exact_size(egui::vec2(160.0, 12.0), egui::Sense::hover());
@@ -336,7 +424,11 @@ impl ParticleView {
                     for s in 0..steps {
                         let x0 = rect.left() + rect.width() * s as f32 / steps as f32;
                         let x1 = rect.left() + rect.width() * (s + 1) as f32 / steps as f32;
-                        ui.painter().rect_filled(egui::Rect::from_x_y_ranges(x0..=x1, rect.y_range()), 0.0, palette::ramp_colour((s as f32 + 0.5) / steps as f32));
+                        ui.painter().rect_filled(
+                            egui::Rect::from_x_y_ranges(x0..=x1, rect.y_range()),
+                            0.0,
+                            palette::ramp_colour((s as f32 + 0.5) / steps as f32),
+                        );
                     }
                     let top = format!("{:.3} {unit}", self.scale_max);
                     ui.label(match real {
@@ -347,8 +439,18 @@ impl ParticleView {
             }
             ui.separator();
             ui.weak(match self.settings.mode {
-                ViewMode::Box3d => format!("{} atoms, box edge {:.2} σ ({})", frame.len(), frame.box_length, drawn(self.shown, frame.len())),
-                ViewMode::Slab => format!("{} of {} atoms in the slab ({})", self.placed, frame.len(), drawn(self.shown, self.placed)),
+                ViewMode::Box3d => format!(
+                    "{} atoms, box edge {:.2} σ ({})",
+                    frame.len(),
+                    frame.box_length,
+                    drawn(self.shown, frame.len())
+                ),
+                ViewMode::Slab => format!(
+                    "{} of {} atoms in the slab ({})",
+                    self.placed,
+                    frame.len(),
+                    drawn(self.shown, self.placed)
+                ),
             });
         });
     }
@@ -356,7 +458,11 @@ impl ParticleView {
 
 /// How many of `of` atoms were drawn, for the legend.
 fn drawn(shown: usize, of: usize) -> String {
-    if shown >= of { "all drawn".into() } else { format!("{shown} drawn; the rest are hidden behind them or out of view") }
+    if shown >= of {
+        "all drawn".into()
+    } else {
+        format!("{shown} drawn; the rest are hidden behind them or out of view")
+    }
 }
 
 fn swatch(ui: &mut egui::Ui, c: egui::Color32) {
@@ -366,7 +472,11 @@ fn swatch(ui: &mut egui::Ui, c: egui::Color32) {
 
 /// Right, up and backward unit vectors of the orbit camera.
 fn basis(o: &Orbit) -> (Vec3, Vec3, Vec3) {
-    let back = Vec3::new(o.pitch.cos() * o.yaw.sin(), o.pitch.sin(), o.pitch.cos() * o.yaw.cos());
+    let back = Vec3::new(
+        o.pitch.cos() * o.yaw.sin(),
+        o.pitch.sin(),
+        o.pitch.cos() * o.yaw.cos(),
+    );
     let right = Vec3::Y.cross(back).normalize_or_zero();
     let up = back.cross(right);
     (right, up, back)

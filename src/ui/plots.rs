@@ -20,10 +20,19 @@ pub fn nice_grid(input: GridInput) -> Vec<GridMark> {
     }
     let raw = span / 5.0;
     let mag = 10f64.powf(raw.log10().floor());
-    let step = [1.0, 2.0, 5.0, 10.0].into_iter().map(|m| m * mag).find(|s| *s >= raw).unwrap_or(10.0 * mag);
+    let step = [1.0, 2.0, 5.0, 10.0]
+        .into_iter()
+        .map(|m| m * mag)
+        .find(|s| *s >= raw)
+        .unwrap_or(10.0 * mag);
     let first = (lo / step).ceil() as i64;
     let last = (hi / step).floor() as i64;
-    (first..=last).map(|k| GridMark { value: k as f64 * step, step_size: step }).collect()
+    (first..=last)
+        .map(|k| GridMark {
+            value: k as f64 * step,
+            step_size: step,
+        })
+        .collect()
 }
 
 /// Buckets per plotted series (each draws at most twice this many points).
@@ -84,11 +93,19 @@ impl Plots {
     }
 
     fn temperature_factor(&self) -> f64 {
-        if self.real() { self.units.temperature_kelvin() } else { 1.0 }
+        if self.real() {
+            self.units.temperature_kelvin()
+        } else {
+            1.0
+        }
     }
 
     fn pressure_factor(&self) -> f64 {
-        if self.real() { self.units.pressure_bar() } else { 1.0 }
+        if self.real() {
+            self.units.pressure_bar()
+        } else {
+            1.0
+        }
     }
 
     /// Time unit of the x axes.
@@ -103,7 +120,8 @@ impl Plots {
         self.kinetic.push(t, o.kinetic);
         self.potential.push(t, o.potential);
         self.total.push(t, o.total);
-        self.temperature.push(t, o.temperature * self.temperature_factor());
+        self.temperature
+            .push(t, o.temperature * self.temperature_factor());
         self.pressure.push(t, o.pressure * self.pressure_factor());
         self.log.push(*o);
         self.last = Some(*o);
@@ -112,7 +130,14 @@ impl Plots {
     /// Forgets everything after simulated time `time` (τ), after a rewind.
     pub fn rewind_to(&mut self, time: f64) {
         let t = time * self.time_factor();
-        for s in [&mut self.drift, &mut self.kinetic, &mut self.potential, &mut self.total, &mut self.temperature, &mut self.pressure] {
+        for s in [
+            &mut self.drift,
+            &mut self.kinetic,
+            &mut self.potential,
+            &mut self.total,
+            &mut self.temperature,
+            &mut self.pressure,
+        ] {
             s.cut_after(t);
         }
         self.log.keep_while(|o| o.time <= time);
@@ -142,7 +167,11 @@ impl Plots {
     /// Draws the four plots in a 2×2 grid filling the available space.
     pub fn show(&mut self, ui: &mut egui::Ui) {
         let tu = self.time_unit();
-        let (tunit, punit) = if self.real() { ("K", "bar") } else { ("kT/ε", "ε/σ³") };
+        let (tunit, punit) = if self.real() {
+            ("K", "bar")
+        } else {
+            ("kT/ε", "ε/σ³")
+        };
         let avail = ui.available_size();
         let w = (avail.x - 8.0) / 2.0;
         let h = ((avail.y - 8.0) / 2.0).max(90.0);
@@ -163,26 +192,51 @@ impl Plots {
                 .y_grid_spacer(nice_grid)
                 .x_grid_spacer(nice_grid)
         };
-        let Plots { drift, kinetic, potential, total, temperature, pressure, .. } = self;
+        let Plots {
+            drift,
+            kinetic,
+            potential,
+            total,
+            temperature,
+            pressure,
+            ..
+        } = self;
         ui.horizontal(|ui| {
             plot("drift-plot", "relative drift [1]".into()).show(ui, |p| {
-                p.line(Line::new("conserved energy drift", PlotPoints::Borrowed(drift.points())).color(palette::SERIES[0]));
+                p.line(
+                    Line::new("conserved energy drift", PlotPoints::Borrowed(drift.points()))
+                        .color(palette::SERIES[0]),
+                );
             });
             plot("energy-plot", "energy per atom [ε]".into()).show(ui, |p| {
-                p.line(Line::new("kinetic", PlotPoints::Borrowed(kinetic.points())).color(palette::SERIES[1]));
-                p.line(Line::new("potential", PlotPoints::Borrowed(potential.points())).color(palette::SERIES[2]));
+                p.line(
+                    Line::new("kinetic", PlotPoints::Borrowed(kinetic.points())).color(palette::SERIES[1]),
+                );
+                p.line(
+                    Line::new("potential", PlotPoints::Borrowed(potential.points()))
+                        .color(palette::SERIES[2]),
+                );
                 p.line(Line::new("total", PlotPoints::Borrowed(total.points())).color(palette::SERIES[3]));
             });
         });
         ui.horizontal(|ui| {
             plot("temperature-plot", format!("temperature [{tunit}]")).show(ui, |p| {
-                p.line(Line::new("temperature", PlotPoints::Borrowed(temperature.points())).color(palette::SERIES[4]));
+                p.line(
+                    Line::new("temperature", PlotPoints::Borrowed(temperature.points()))
+                        .color(palette::SERIES[4]),
+                );
                 if let Some(t) = target {
-                    p.hline(HLine::new("target", t).color(palette::TARGET).style(egui_plot::LineStyle::dashed_dense()));
+                    p.hline(
+                        HLine::new("target", t)
+                            .color(palette::TARGET)
+                            .style(egui_plot::LineStyle::dashed_dense()),
+                    );
                 }
             });
             plot("pressure-plot", format!("pressure [{punit}]")).show(ui, |p| {
-                p.line(Line::new("pressure", PlotPoints::Borrowed(pressure.points())).color(palette::SERIES[5]));
+                p.line(
+                    Line::new("pressure", PlotPoints::Borrowed(pressure.points())).color(palette::SERIES[5]),
+                );
             });
         });
     }
@@ -195,13 +249,25 @@ mod tests {
 
     #[test]
     fn nice_grid_labels_about_five_round_values() {
-        let marks = nice_grid(GridInput { bounds: (-7.3, 1.2), base_step_size: 0.01 });
+        let marks = nice_grid(GridInput {
+            bounds: (-7.3, 1.2),
+            base_step_size: 0.01,
+        });
         let values: Vec<f64> = marks.iter().map(|m| m.value).collect();
         assert_eq!(values, vec![-6.0, -4.0, -2.0, 0.0]);
         assert!(marks.iter().all(|m| m.step_size == 2.0));
-        let marks = nice_grid(GridInput { bounds: (0.0, 0.83), base_step_size: 0.001 });
+        let marks = nice_grid(GridInput {
+            bounds: (0.0, 0.83),
+            base_step_size: 0.001,
+        });
         assert_eq!(marks.len(), 5, "{marks:?}");
-        assert!(nice_grid(GridInput { bounds: (1.0, 1.0), base_step_size: 0.1 }).is_empty());
+        assert!(
+            nice_grid(GridInput {
+                bounds: (1.0, 1.0),
+                base_step_size: 0.1
+            })
+            .is_empty()
+        );
     }
 
     #[test]
@@ -209,7 +275,12 @@ mod tests {
         let u = UnitSystem::new(Species::Argon);
         let mut p = Plots::new(u);
         p.set_target(Some(1.0));
-        p.push(&Observables { time: 2.0, temperature: 0.5, pressure: 1.0, ..Default::default() });
+        p.push(&Observables {
+            time: 2.0,
+            temperature: 0.5,
+            pressure: 1.0,
+            ..Default::default()
+        });
         let pt = p.temperature.points()[0];
         assert!((pt.x - 2.0 * u.tau_ps()).abs() < 1e-12);
         assert!((pt.y - 0.5 * u.temperature_kelvin()).abs() < 1e-9);

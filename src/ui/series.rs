@@ -18,7 +18,11 @@ struct Bucket {
 
 impl Bucket {
     fn single(p: [f64; 2]) -> Self {
-        Bucket { min: p, max: p, count: 1 }
+        Bucket {
+            min: p,
+            max: p,
+            count: 1,
+        }
     }
 
     fn merge(a: Bucket, b: Bucket) -> Bucket {
@@ -48,7 +52,14 @@ impl EnvelopeSeries {
     /// A series of at most `capacity` buckets (at least 4); it plots at most twice that many points.
     pub fn new(capacity: usize) -> Self {
         let capacity = capacity.max(4) & !1;
-        EnvelopeSeries { buckets: Vec::with_capacity(capacity + 1), pending: None, width: 1, capacity, cache: Vec::new(), dirty: true }
+        EnvelopeSeries {
+            buckets: Vec::with_capacity(capacity + 1),
+            pending: None,
+            width: 1,
+            capacity,
+            cache: Vec::new(),
+            dirty: true,
+        }
     }
 
     /// Forgets every point.
@@ -105,7 +116,11 @@ impl EnvelopeSeries {
 
     /// Raw points seen since the last clear.
     pub fn seen(&self) -> u64 {
-        self.buckets.iter().chain(self.pending.iter()).map(|b| b.count).sum()
+        self.buckets
+            .iter()
+            .chain(self.pending.iter())
+            .map(|b| b.count)
+            .sum()
     }
 
     /// Buckets held (bounded by the capacity).
@@ -117,7 +132,9 @@ impl EnvelopeSeries {
     pub fn y_range(&self) -> Option<(f64, f64)> {
         let mut it = self.buckets.iter().chain(self.pending.iter());
         let first = it.next()?;
-        Some(it.fold((first.min[1], first.max[1]), |(lo, hi), b| (lo.min(b.min[1]), hi.max(b.max[1]))))
+        Some(it.fold((first.min[1], first.max[1]), |(lo, hi), b| {
+            (lo.min(b.min[1]), hi.max(b.max[1]))
+        }))
     }
 
     /// The points to draw, in x order: each bucket's minimum and maximum.
@@ -125,7 +142,11 @@ impl EnvelopeSeries {
         if self.dirty {
             self.cache.clear();
             for b in self.buckets.iter().chain(self.pending.iter()) {
-                let (a, c) = if b.min[0] <= b.max[0] { (b.min, b.max) } else { (b.max, b.min) };
+                let (a, c) = if b.min[0] <= b.max[0] {
+                    (b.min, b.max)
+                } else {
+                    (b.max, b.min)
+                };
                 self.cache.push(PlotPoint::new(a[0], a[1]));
                 if c != a {
                     self.cache.push(PlotPoint::new(c[0], c[1]));
@@ -150,7 +171,12 @@ pub struct ThinnedLog<T> {
 impl<T: Copy> ThinnedLog<T> {
     /// A log of at most `capacity` samples (at least 2).
     pub fn new(capacity: usize) -> Self {
-        ThinnedLog { items: Vec::new(), capacity: capacity.max(2), stride: 1, offered: 0 }
+        ThinnedLog {
+            items: Vec::new(),
+            capacity: capacity.max(2),
+            stride: 1,
+            offered: 0,
+        }
     }
 
     /// Forgets every sample.
@@ -181,7 +207,11 @@ impl<T: Copy> ThinnedLog<T> {
 
     /// Keeps the leading samples for which `keep` holds and drops the rest.
     pub fn keep_while(&mut self, keep: impl Fn(&T) -> bool) {
-        let k = self.items.iter().position(|t| !keep(t)).unwrap_or(self.items.len());
+        let k = self
+            .items
+            .iter()
+            .position(|t| !keep(t))
+            .unwrap_or(self.items.len());
         self.items.truncate(k);
     }
 
@@ -239,12 +269,24 @@ mod tests {
     fn keeps_a_single_spike_after_heavy_decimation() {
         let mut s = EnvelopeSeries::new(16);
         for i in 0..100_000u64 {
-            let y = if i == 12_345 { 50.0 } else if i == 77_777 { -40.0 } else { 0.0 };
+            let y = if i == 12_345 {
+                50.0
+            } else if i == 77_777 {
+                -40.0
+            } else {
+                0.0
+            };
             s.push(i as f64, y);
         }
         let pts = s.points();
-        assert!(pts.iter().any(|p| p.y == 50.0 && p.x == 12_345.0), "the maximum is lost");
-        assert!(pts.iter().any(|p| p.y == -40.0 && p.x == 77_777.0), "the minimum is lost");
+        assert!(
+            pts.iter().any(|p| p.y == 50.0 && p.x == 12_345.0),
+            "the maximum is lost"
+        );
+        assert!(
+            pts.iter().any(|p| p.y == -40.0 && p.x == 77_777.0),
+            "the minimum is lost"
+        );
         assert_eq!(s.y_range(), Some((-40.0, 50.0)));
     }
 
@@ -265,7 +307,10 @@ mod tests {
             s.push(i as f64, i as f64 * 2.0);
         }
         let pts: Vec<(f64, f64)> = s.points().iter().map(|p| (p.x, p.y)).collect();
-        assert_eq!(pts, (0..10).map(|i| (i as f64, i as f64 * 2.0)).collect::<Vec<_>>());
+        assert_eq!(
+            pts,
+            (0..10).map(|i| (i as f64, i as f64 * 2.0)).collect::<Vec<_>>()
+        );
         s.clear();
         assert!(s.points().is_empty());
     }
@@ -279,7 +324,14 @@ mod tests {
         assert!(log.items().len() <= 100);
         let stride = log.stride();
         assert!(stride > 1);
-        assert!(log.items().iter().enumerate().all(|(k, &v)| v == k as u64 * stride), "{:?}", &log.items()[..10]);
+        assert!(
+            log.items()
+                .iter()
+                .enumerate()
+                .all(|(k, &v)| v == k as u64 * stride),
+            "{:?}",
+            &log.items()[..10]
+        );
         assert_eq!(log.offered(), 10_000);
     }
 

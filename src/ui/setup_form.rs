@@ -74,7 +74,13 @@ fn parse_int(field: &str, text: &str, errors: &mut FieldErrors) -> u64 {
     match text.trim().replace('_', "").parse::<u64>() {
         Ok(v) => v,
         Err(_) => {
-            errors.insert(field.into(), format!("{field}: \"{}\" is not a whole number; allowed: a whole number ≥ 0", text.trim()));
+            errors.insert(
+                field.into(),
+                format!(
+                    "{field}: \"{}\" is not a whole number; allowed: a whole number ≥ 0",
+                    text.trim()
+                ),
+            );
             0
         }
     }
@@ -84,11 +90,25 @@ impl SetupForm {
     /// A form showing `s`.
     pub fn from_setup(s: &Setup) -> Self {
         let (thermostat, relaxation, friction) = match s.ensemble {
-            Ensemble::Nve => (ThermostatKind::None, crate::io::setup::Duration::Picoseconds(1.0), crate::io::setup::Rate::PerPicosecond(1.0)),
-            Ensemble::Nvt { thermostat: ThermostatChoice::StochasticRescale { relaxation } } => {
-                (ThermostatKind::StochasticRescale, relaxation, crate::io::setup::Rate::PerPicosecond(1.0))
-            }
-            Ensemble::Nvt { thermostat: ThermostatChoice::Langevin { friction } } => (ThermostatKind::Langevin, crate::io::setup::Duration::Picoseconds(1.0), friction),
+            Ensemble::Nve => (
+                ThermostatKind::None,
+                crate::io::setup::Duration::Picoseconds(1.0),
+                crate::io::setup::Rate::PerPicosecond(1.0),
+            ),
+            Ensemble::Nvt {
+                thermostat: ThermostatChoice::StochasticRescale { relaxation },
+            } => (
+                ThermostatKind::StochasticRescale,
+                relaxation,
+                crate::io::setup::Rate::PerPicosecond(1.0),
+            ),
+            Ensemble::Nvt {
+                thermostat: ThermostatChoice::Langevin { friction },
+            } => (
+                ThermostatKind::Langevin,
+                crate::io::setup::Duration::Picoseconds(1.0),
+                friction,
+            ),
         };
         let (relaxation, friction) = if s.units().has_real_units() {
             (relaxation, friction)
@@ -105,7 +125,14 @@ impl SetupForm {
         };
         SetupForm {
             title: s.title.clone(),
-            species: s.species.iter().map(|x| SpeciesRow { kind: x.kind, share: super::unit_field::format_number(x.share) }).collect(),
+            species: s
+                .species
+                .iter()
+                .map(|x| SpeciesRow {
+                    kind: x.kind,
+                    share: super::unit_field::format_number(x.share),
+                })
+                .collect(),
             atoms: s.atoms.to_string(),
             density: UnitField::from_value(s.density),
             temperature: UnitField::from_value(s.temperature),
@@ -137,11 +164,20 @@ impl SetupForm {
             let share = match row.share.trim().parse::<f64>() {
                 Ok(v) => v,
                 Err(_) => {
-                    errors.insert(field.clone(), format!("{field}: \"{}\" is not a number; allowed: 0 < share ≤ 1", row.share.trim()));
+                    errors.insert(
+                        field.clone(),
+                        format!(
+                            "{field}: \"{}\" is not a number; allowed: 0 < share ≤ 1",
+                            row.share.trim()
+                        ),
+                    );
                     1.0
                 }
             };
-            species.push(SpeciesShare { kind: row.kind, share });
+            species.push(SpeciesShare {
+                kind: row.kind,
+                share,
+            });
         }
         use crate::io::setup::{Density, Duration, Length, Rate, Temperature};
         fn unit<T>(errors: &mut FieldErrors, field: &str, r: Result<T, String>, fallback: T) -> T {
@@ -150,17 +186,51 @@ impl SetupForm {
                 fallback
             })
         }
-        let density = unit(&mut errors, "density", self.density.value("density"), Density::Reduced(0.8));
-        let temperature = unit(&mut errors, "temperature", self.temperature.value("temperature"), Temperature::Reduced(1.0));
-        let timestep = unit(&mut errors, "timestep", self.timestep.value("timestep"), Duration::Reduced(0.005));
-        let cutoff = unit(&mut errors, "cutoff", self.cutoff.value("cutoff"), Length::Sigma(2.5));
+        let density = unit(
+            &mut errors,
+            "density",
+            self.density.value("density"),
+            Density::Reduced(0.8),
+        );
+        let temperature = unit(
+            &mut errors,
+            "temperature",
+            self.temperature.value("temperature"),
+            Temperature::Reduced(1.0),
+        );
+        let timestep = unit(
+            &mut errors,
+            "timestep",
+            self.timestep.value("timestep"),
+            Duration::Reduced(0.005),
+        );
+        let cutoff = unit(
+            &mut errors,
+            "cutoff",
+            self.cutoff.value("cutoff"),
+            Length::Sigma(2.5),
+        );
         let skin = unit(&mut errors, "skin", self.skin.value("skin"), Length::Sigma(0.3));
-        let relaxation = unit(&mut errors, "ensemble.relaxation", self.relaxation.value("ensemble.relaxation"), Duration::Reduced(0.5));
-        let friction = unit(&mut errors, "ensemble.friction", self.friction.value("ensemble.friction"), Rate::Reduced(1.0));
+        let relaxation = unit(
+            &mut errors,
+            "ensemble.relaxation",
+            self.relaxation.value("ensemble.relaxation"),
+            Duration::Reduced(0.5),
+        );
+        let friction = unit(
+            &mut errors,
+            "ensemble.friction",
+            self.friction.value("ensemble.friction"),
+            Rate::Reduced(1.0),
+        );
         let ensemble = match self.thermostat {
             ThermostatKind::None => Ensemble::Nve,
-            ThermostatKind::StochasticRescale => Ensemble::Nvt { thermostat: ThermostatChoice::StochasticRescale { relaxation } },
-            ThermostatKind::Langevin => Ensemble::Nvt { thermostat: ThermostatChoice::Langevin { friction } },
+            ThermostatKind::StochasticRescale => Ensemble::Nvt {
+                thermostat: ThermostatChoice::StochasticRescale { relaxation },
+            },
+            ThermostatKind::Langevin => Ensemble::Nvt {
+                thermostat: ThermostatChoice::Langevin { friction },
+            },
         };
         let atoms = parse_int("atoms", &self.atoms, &mut errors);
         let seed = parse_int("seed", &self.seed, &mut errors);
@@ -236,7 +306,8 @@ impl SetupForm {
 
         ui.horizontal(|ui| {
             let l = ui.label("Title");
-            ui.add(egui::TextEdit::singleline(&mut self.title).desired_width(260.0)).labelled_by(l.id);
+            ui.add(egui::TextEdit::singleline(&mut self.title).desired_width(260.0))
+                .labelled_by(l.id);
         });
         ui.separator();
         ui.strong("Composition");
@@ -255,10 +326,17 @@ impl SetupForm {
                     .response
                     .on_hover_text(format!("species {}", i + 1));
                 let (rect, _) = ui.allocate_exact_size(egui::vec2(12.0, 12.0), egui::Sense::hover());
-                ui.painter().circle_filled(rect.center(), 5.5, palette::species_colour(row.kind));
+                ui.painter()
+                    .circle_filled(rect.center(), 5.5, palette::species_colour(row.kind));
                 let l = ui.label("share");
-                ui.add(egui::TextEdit::singleline(&mut row.share).desired_width(60.0)).labelled_by(l.id);
-                if n > 1 && ui.small_button("Remove").on_hover_text("remove this species").clicked() {
+                ui.add(egui::TextEdit::singleline(&mut row.share).desired_width(60.0))
+                    .labelled_by(l.id);
+                if n > 1
+                    && ui
+                        .small_button("Remove")
+                        .on_hover_text("remove this species")
+                        .clicked()
+                {
                     remove = Some(i);
                 }
             });
@@ -271,8 +349,14 @@ impl SetupForm {
         ui.horizontal(|ui| {
             if self.species.len() < crate::io::setup::MAX_SPECIES && ui.button("Add species").clicked() {
                 let used: Vec<Species> = self.species.iter().map(|r| r.kind).collect();
-                if let Some(s) = Species::ALL.into_iter().find(|s| s.is_real() && !used.contains(s)) {
-                    self.species.push(SpeciesRow { kind: s, share: "0".into() });
+                if let Some(s) = Species::ALL
+                    .into_iter()
+                    .find(|s| s.is_real() && !used.contains(s))
+                {
+                    self.species.push(SpeciesRow {
+                        kind: s,
+                        share: "0".into(),
+                    });
                 }
             }
             ui.weak("The first species sets the reduced units.");
@@ -283,7 +367,8 @@ impl SetupForm {
         ui.strong("State");
         ui.horizontal(|ui| {
             let l = ui.label("Atoms");
-            ui.add(egui::TextEdit::singleline(&mut self.atoms).desired_width(80.0)).labelled_by(l.id);
+            ui.add(egui::TextEdit::singleline(&mut self.atoms).desired_width(80.0))
+                .labelled_by(l.id);
         });
         err_at(ui, "atoms");
         self.density.show(ui, "Density", &draft);
@@ -305,9 +390,21 @@ impl SetupForm {
         ui.horizontal(|ui| {
             ui.label("Potential");
             for (m, name, tip) in [
-                (PotentialMode::Truncated, "cut", "U(r) up to the cutoff, zero beyond"),
-                (PotentialMode::TruncatedShifted, "cut + shift", "energy shifted to zero at the cutoff"),
-                (PotentialMode::ShiftedForce, "smooth force", "energy and force both go to zero at the cutoff"),
+                (
+                    PotentialMode::Truncated,
+                    "cut",
+                    "U(r) up to the cutoff, zero beyond",
+                ),
+                (
+                    PotentialMode::TruncatedShifted,
+                    "cut + shift",
+                    "energy shifted to zero at the cutoff",
+                ),
+                (
+                    PotentialMode::ShiftedForce,
+                    "smooth force",
+                    "energy and force both go to zero at the cutoff",
+                ),
             ] {
                 ui.radio_value(&mut self.potential, m, name).on_hover_text(tip);
             }
@@ -316,7 +413,11 @@ impl SetupForm {
         ui.horizontal(|ui| {
             ui.label("Ensemble");
             ui.radio_value(&mut self.thermostat, ThermostatKind::None, "constant energy");
-            ui.radio_value(&mut self.thermostat, ThermostatKind::StochasticRescale, "rescale bath");
+            ui.radio_value(
+                &mut self.thermostat,
+                ThermostatKind::StochasticRescale,
+                "rescale bath",
+            );
             ui.radio_value(&mut self.thermostat, ThermostatKind::Langevin, "Langevin bath");
         });
         match self.thermostat {
@@ -341,11 +442,19 @@ impl SetupForm {
                 ("Seed", &mut self.seed),
             ] {
                 let l = ui.label(label);
-                ui.add(egui::TextEdit::singleline(text).desired_width(100.0)).labelled_by(l.id);
+                ui.add(egui::TextEdit::singleline(text).desired_width(100.0))
+                    .labelled_by(l.id);
                 ui.end_row();
             }
         });
-        for key in ["steps", "equilibration_steps", "sample_every", "seed", "trajectory_every", ""] {
+        for key in [
+            "steps",
+            "equilibration_steps",
+            "sample_every",
+            "seed",
+            "trajectory_every",
+            "",
+        ] {
             err_at(ui, key);
         }
 
@@ -375,7 +484,10 @@ impl SetupForm {
             }
         });
         if built.is_err() {
-            ui.colored_label(palette::ERROR_TEXT, "The setup has errors (marked above); the running simulation is unchanged.");
+            ui.colored_label(
+                palette::ERROR_TEXT,
+                "The setup has errors (marked above); the running simulation is unchanged.",
+            );
         } else if unapplied {
             ui.weak("Edited: not yet applied.");
         }
@@ -405,7 +517,13 @@ mod tests {
         let msg = e.get("density").expect("a density error");
         assert!(msg.contains("allowed"), "{msg}");
         f.density.text = "abc".into();
-        assert!(f.build().unwrap_err().get("density").unwrap().contains("not a number"));
+        assert!(
+            f.build()
+                .unwrap_err()
+                .get("density")
+                .unwrap()
+                .contains("not a number")
+        );
     }
 
     #[test]

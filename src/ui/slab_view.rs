@@ -40,7 +40,11 @@ pub struct Slab {
 
 impl Default for Slab {
     fn default() -> Self {
-        Slab { axis: Axis::Z, centre: 0.5, thickness: 2.0 }
+        Slab {
+            axis: Axis::Z,
+            centre: 0.5,
+            thickness: 2.0,
+        }
     }
 }
 
@@ -71,13 +75,27 @@ impl Slab {
             }
             ui.separator();
             let l = ui.label("at");
-            ui.add(egui::Slider::new(&mut self.centre, 0.0..=1.0).fixed_decimals(2).text("of the edge")).labelled_by(l.id);
+            ui.add(
+                egui::Slider::new(&mut self.centre, 0.0..=1.0)
+                    .fixed_decimals(2)
+                    .text("of the edge"),
+            )
+            .labelled_by(l.id);
             ui.separator();
             let l = ui.label("thickness");
             // Before the first frame the box edge is unknown (0): keep the present thickness
             // in range instead of letting the slider clamp it down.
-            let max = if box_length > 0.0 { box_length.max(0.5) } else { self.thickness.max(2.0) };
-            ui.add(egui::Slider::new(&mut self.thickness, 0.2..=max).fixed_decimals(1).suffix(" σ")).labelled_by(l.id);
+            let max = if box_length > 0.0 {
+                box_length.max(0.5)
+            } else {
+                self.thickness.max(2.0)
+            };
+            ui.add(
+                egui::Slider::new(&mut self.thickness, 0.2..=max)
+                    .fixed_decimals(1)
+                    .suffix(" σ"),
+            )
+            .labelled_by(l.id);
         });
     }
 }
@@ -88,19 +106,34 @@ mod tests {
 
     #[test]
     fn selects_atoms_within_half_the_thickness_with_wrap() {
-        let slab = Slab { axis: Axis::X, centre: 0.0, thickness: 2.0 };
+        let slab = Slab {
+            axis: Axis::X,
+            centre: 0.0,
+            thickness: 2.0,
+        };
         let l = 10.0;
         assert_eq!(slab.depth([0.5, 3.0, 3.0], l), Some(0.5));
-        assert!((slab.depth([9.5, 3.0, 3.0], l).unwrap() + 0.5).abs() < 1e-6, "wraps across the face");
+        assert!(
+            (slab.depth([9.5, 3.0, 3.0], l).unwrap() + 0.5).abs() < 1e-6,
+            "wraps across the face"
+        );
         assert_eq!(slab.depth([2.0, 3.0, 3.0], l), None);
     }
 
     #[test]
     fn projects_onto_the_other_two_axes() {
-        let slab = Slab { axis: Axis::Z, centre: 0.5, thickness: 1.0 };
+        let slab = Slab {
+            axis: Axis::Z,
+            centre: 0.5,
+            thickness: 1.0,
+        };
         assert_eq!(slab.place([1.0, 2.0, 5.0], 10.0), Some([1.0, 2.0, 0.0]));
         assert_eq!(slab.place([1.0, 2.0, 9.0], 10.0), None);
-        let slab = Slab { axis: Axis::X, centre: 0.5, thickness: 1.0 };
+        let slab = Slab {
+            axis: Axis::X,
+            centre: 0.5,
+            thickness: 1.0,
+        };
         assert_eq!(slab.place([5.25, 2.0, 3.0], 10.0), Some([2.0, 3.0, 0.25]));
     }
 }

@@ -33,7 +33,11 @@ impl StatusLine {
     /// The status text: step, simulated time, steps/s, atom-steps/s, list rebuilds.
     pub fn text(&self, units: UnitSystem) -> String {
         let s = &self.status;
-        let time = if units.has_real_units() { format!("{:.3} ps ({:.2} τ)", s.time * units.tau_ps(), s.time) } else { format!("{:.3} τ", s.time) };
+        let time = if units.has_real_units() {
+            format!("{:.3} ps ({:.2} τ)", s.time * units.tau_ps(), s.time)
+        } else {
+            format!("{:.3} τ", s.time)
+        };
         format!(
             "{} · step {} · t = {} · {} steps/s · {} atom-steps/s · {} neighbour-list rebuilds",
             if s.running { "running" } else { "paused" },
@@ -50,14 +54,21 @@ impl StatusLine {
         let Some(alarm) = &self.alarm else { return false };
         let mut rewind = false;
         let mut dismiss = false;
-        egui::Frame::new().fill(palette::ALARM).inner_margin(8.0).corner_radius(4.0).show(ui, |ui| {
-            ui.horizontal_wrapped(|ui| {
-                ui.colored_label(egui::Color32::WHITE, egui::RichText::new("Watchdog stopped the run:").strong());
-                ui.colored_label(egui::Color32::WHITE, alarm.describe());
-                rewind = ui.button("Rewind to the last safe state").clicked();
-                dismiss = ui.button("Dismiss").clicked();
+        egui::Frame::new()
+            .fill(palette::ALARM)
+            .inner_margin(8.0)
+            .corner_radius(4.0)
+            .show(ui, |ui| {
+                ui.horizontal_wrapped(|ui| {
+                    ui.colored_label(
+                        egui::Color32::WHITE,
+                        egui::RichText::new("Watchdog stopped the run:").strong(),
+                    );
+                    ui.colored_label(egui::Color32::WHITE, alarm.describe());
+                    rewind = ui.button("Rewind to the last safe state").clicked();
+                    dismiss = ui.button("Dismiss").clicked();
+                });
             });
-        });
         if dismiss {
             self.alarm = None;
         }
@@ -88,11 +99,27 @@ mod tests {
     #[test]
     fn status_text_names_every_rate() {
         let line = StatusLine {
-            status: Status { running: true, step: 1200, time: 6.0, atoms: 4000, steps_per_second: 250.0, atom_steps_per_second: 1.0e6, list_builds: 17, snapshots: 2 },
+            status: Status {
+                running: true,
+                step: 1200,
+                time: 6.0,
+                atoms: 4000,
+                steps_per_second: 250.0,
+                atom_steps_per_second: 1.0e6,
+                list_builds: 17,
+                snapshots: 2,
+            },
             ..Default::default()
         };
         let t = line.text(UnitSystem::new(Species::ReducedLJ));
-        assert!(t.contains("step 1200") && t.contains("6.000 τ") && t.contains("250 steps/s") && t.contains("1.00 M atom-steps/s") && t.contains("17 neighbour-list"), "{t}");
+        assert!(
+            t.contains("step 1200")
+                && t.contains("6.000 τ")
+                && t.contains("250 steps/s")
+                && t.contains("1.00 M atom-steps/s")
+                && t.contains("17 neighbour-list"),
+            "{t}"
+        );
         let real = line.text(UnitSystem::new(Species::Argon));
         assert!(real.contains(" ps ("), "{real}");
     }

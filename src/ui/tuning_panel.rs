@@ -5,10 +5,10 @@
 
 use super::palette;
 use super::plots::nice_grid;
-use super::unit_field::{format_number, LengthUnit, Quantity};
-use crate::engine::protocol::{check_tune_request, TuneUnits, TuningReport, TUNE_MAX_VALUES};
-use crate::engine::tuning::FLUCTUATION_LIMIT;
+use super::unit_field::{LengthUnit, Quantity, format_number};
 use crate::engine::Command;
+use crate::engine::protocol::{TUNE_MAX_VALUES, TuneUnits, TuningReport, check_tune_request};
+use crate::engine::tuning::FLUCTUATION_LIMIT;
 use crate::io::setup::{Duration, Length, Setup};
 use crate::physics::UnitSystem;
 use egui_plot::{Corner, HLine, Legend, Line, MarkerShape, Plot, PlotPoints, Points, VLine};
@@ -39,13 +39,24 @@ struct Shown {
 
 impl Shown {
     fn of(units: UnitSystem) -> Self {
-        Shown { real: units.has_real_units(), units }
+        Shown {
+            real: units.has_real_units(),
+            units,
+        }
     }
     fn timestep(&self) -> (f64, &'static str) {
-        if self.real { (self.units.tau_fs(), "fs") } else { (1.0, "τ") }
+        if self.real {
+            (self.units.tau_fs(), "fs")
+        } else {
+            (1.0, "τ")
+        }
     }
     fn duration(&self) -> (f64, &'static str) {
-        if self.real { (self.units.tau_ps(), "ps") } else { (1.0, "τ") }
+        if self.real {
+            (self.units.tau_ps(), "ps")
+        } else {
+            (1.0, "τ")
+        }
     }
     fn length(&self, unit: LengthUnit) -> (f64, &'static str) {
         match unit {
@@ -54,13 +65,25 @@ impl Shown {
         }
     }
     fn energy(&self) -> (f64, &'static str) {
-        if self.real { (self.units.energy_kj_mol(), "kJ/mol") } else { (1.0, "ε") }
+        if self.real {
+            (self.units.energy_kj_mol(), "kJ/mol")
+        } else {
+            (1.0, "ε")
+        }
     }
     fn pressure(&self) -> (f64, &'static str) {
-        if self.real { (self.units.pressure_bar(), "bar") } else { (1.0, "ε/σ³") }
+        if self.real {
+            (self.units.pressure_bar(), "bar")
+        } else {
+            (1.0, "ε/σ³")
+        }
     }
     fn tune_units(&self, length: LengthUnit) -> TuneUnits {
-        TuneUnits { timestep: self.timestep(), duration: self.duration(), length: self.length(length) }
+        TuneUnits {
+            timestep: self.timestep(),
+            duration: self.duration(),
+            length: self.length(length),
+        }
     }
 }
 
@@ -94,15 +117,23 @@ pub struct TuningPanel {
 
 /// Parses a comma- or space-separated list of numbers; errors name the field.
 fn parse_list(field: &str, text: &str) -> Result<Vec<f64>, String> {
-    let items: Vec<&str> = text.split([',', ';', ' ']).map(str::trim).filter(|t| !t.is_empty()).collect();
+    let items: Vec<&str> = text
+        .split([',', ';', ' '])
+        .map(str::trim)
+        .filter(|t| !t.is_empty())
+        .collect();
     if items.is_empty() {
-        return Err(format!("{field}: the list is empty; allowed: 1 to {TUNE_MAX_VALUES} numbers separated by commas"));
+        return Err(format!(
+            "{field}: the list is empty; allowed: 1 to {TUNE_MAX_VALUES} numbers separated by commas"
+        ));
     }
     items
         .iter()
         .map(|t| match t.parse::<f64>() {
             Ok(v) if v.is_finite() => Ok(v),
-            _ => Err(format!("{field}: \"{t}\" is not a number; allowed: numbers separated by commas, such as 5, 10, 15")),
+            _ => Err(format!(
+                "{field}: \"{t}\" is not a number; allowed: numbers separated by commas, such as 5, 10, 15"
+            )),
         })
         .collect()
 }
@@ -113,7 +144,11 @@ fn sig3(v: f64) -> String {
 }
 
 fn join(values: impl IntoIterator<Item = f64>) -> String {
-    values.into_iter().map(format_number).collect::<Vec<_>>().join(", ")
+    values
+        .into_iter()
+        .map(format_number)
+        .collect::<Vec<_>>()
+        .join(", ")
 }
 
 impl TuningPanel {
@@ -148,14 +183,27 @@ impl TuningPanel {
         self.units = setup.units();
         let shown = Shown::of(self.units);
         let (tf, _) = shown.timestep();
-        let dt = setup.reduced_duration("timestep", setup.timestep).unwrap_or(0.005);
+        let dt = setup
+            .reduced_duration("timestep", setup.timestep)
+            .unwrap_or(0.005);
         self.timesteps = join(DEFAULT_TIMESTEP_FACTORS.iter().map(|f| f * dt * tf));
         let (lf, _) = shown.length(self.cutoff_unit);
         let fits: Vec<f64> = match setup.resolve() {
-            Ok(spec) => DEFAULT_CUTOFFS.into_iter().filter(|rc| rc + spec.skin <= 0.5 * spec.box_length()).collect(),
+            Ok(spec) => DEFAULT_CUTOFFS
+                .into_iter()
+                .filter(|rc| rc + spec.skin <= 0.5 * spec.box_length())
+                .collect(),
             Err(_) => vec![2.5],
         };
-        self.cutoffs = join(if fits.is_empty() { vec![setup.reduced_length("cutoff", setup.cutoff).unwrap_or(2.5)] } else { fits }.into_iter().map(|rc| rc * lf));
+        self.cutoffs = join(
+            if fits.is_empty() {
+                vec![setup.reduced_length("cutoff", setup.cutoff).unwrap_or(2.5)]
+            } else {
+                fits
+            }
+            .into_iter()
+            .map(|rc| rc * lf),
+        );
         self.duration = if shown.real { "10".into() } else { "5".into() };
         self.error = None;
     }
@@ -226,19 +274,41 @@ impl TuningPanel {
     /// value and the allowed range.
     pub fn request(&self, running: &Setup) -> Result<Command, String> {
         let shown = Shown::of(running.units());
-        let spec = running.resolve().map_err(|e| format!("the running setup is invalid: {e}"))?;
+        let spec = running
+            .resolve()
+            .map_err(|e| format!("the running setup is invalid: {e}"))?;
         let (tf, _) = shown.timestep();
         let (df, du) = shown.duration();
         let (lf, _) = shown.length(self.cutoff_unit);
-        let timesteps: Vec<f64> = parse_list("timesteps", &self.timesteps)?.into_iter().map(|v| v / tf).collect();
-        let cutoffs: Vec<f64> = parse_list("cutoffs", &self.cutoffs)?.into_iter().map(|v| v / lf).collect();
+        let timesteps: Vec<f64> = parse_list("timesteps", &self.timesteps)?
+            .into_iter()
+            .map(|v| v / tf)
+            .collect();
+        let cutoffs: Vec<f64> = parse_list("cutoffs", &self.cutoffs)?
+            .into_iter()
+            .map(|v| v / lf)
+            .collect();
         let d = self.duration.trim();
         let duration = match d.parse::<f64>() {
             Ok(v) if v.is_finite() => v / df,
-            _ => return Err(format!("duration: \"{d}\" is not a number; allowed: a number of {du} such as 10")),
+            _ => {
+                return Err(format!(
+                    "duration: \"{d}\" is not a number; allowed: a number of {du} such as 10"
+                ));
+            }
         };
-        check_tune_request(&spec, &timesteps, &cutoffs, duration, shown.tune_units(self.cutoff_unit))?;
-        Ok(Command::Tune { timesteps, cutoffs, duration })
+        check_tune_request(
+            &spec,
+            &timesteps,
+            &cutoffs,
+            duration,
+            shown.tune_units(self.cutoff_unit),
+        )?;
+        Ok(Command::Tune {
+            timesteps,
+            cutoffs,
+            duration,
+        })
     }
 
     /// Draws the panel; `running` is the setup the engine runs.
@@ -249,73 +319,98 @@ impl TuningPanel {
         let (_, du) = shown.duration();
         ui.label("Short constant-energy trials show which timestep keeps the energy steady; the cutoff scan shows how far energy and pressure are from the full potential. Both run on copies of the present state: your simulation is not advanced.");
         ui.add_space(4.0);
-        egui::Grid::new("tune-inputs").num_columns(2).spacing([8.0, 6.0]).show(ui, |ui| {
-            let l = ui.label(format!("Timesteps [{tu}]"));
-            ui.add(egui::TextEdit::singleline(&mut self.timesteps).desired_width(260.0)).labelled_by(l.id).on_hover_text("comma separated, e.g. 5, 10, 15");
-            ui.end_row();
-            let l = ui.label("Cutoffs");
-            ui.horizontal(|ui| {
-                ui.add(egui::TextEdit::singleline(&mut self.cutoffs).desired_width(200.0)).labelled_by(l.id).on_hover_text("comma separated, e.g. 2.5, 3, 4");
-                let mut unit = self.cutoff_unit;
-                egui::ComboBox::from_id_salt("tune-cutoff-unit")
-                    .selected_text(unit.symbol())
-                    .width(52.0)
-                    .show_ui(ui, |ui| {
-                        for &u in LengthUnit::units() {
-                            ui.add_enabled_ui(shown.real || u.is_reduced(), |ui| {
-                                ui.selectable_value(&mut unit, u, u.symbol());
-                            });
+        egui::Grid::new("tune-inputs")
+            .num_columns(2)
+            .spacing([8.0, 6.0])
+            .show(ui, |ui| {
+                let l = ui.label(format!("Timesteps [{tu}]"));
+                ui.add(egui::TextEdit::singleline(&mut self.timesteps).desired_width(260.0))
+                    .labelled_by(l.id)
+                    .on_hover_text("comma separated, e.g. 5, 10, 15");
+                ui.end_row();
+                let l = ui.label("Cutoffs");
+                ui.horizontal(|ui| {
+                    ui.add(egui::TextEdit::singleline(&mut self.cutoffs).desired_width(200.0))
+                        .labelled_by(l.id)
+                        .on_hover_text("comma separated, e.g. 2.5, 3, 4");
+                    let mut unit = self.cutoff_unit;
+                    egui::ComboBox::from_id_salt("tune-cutoff-unit")
+                        .selected_text(unit.symbol())
+                        .width(52.0)
+                        .show_ui(ui, |ui| {
+                            for &u in LengthUnit::units() {
+                                ui.add_enabled_ui(shown.real || u.is_reduced(), |ui| {
+                                    ui.selectable_value(&mut unit, u, u.symbol());
+                                });
+                            }
+                        })
+                        .response
+                        .widget_info(|| {
+                            egui::WidgetInfo::labeled(egui::Role::ComboBox, true, "unit of the cutoffs")
+                        });
+                    if unit != self.cutoff_unit {
+                        // Convert the typed numbers; leave text that does not parse alone.
+                        let (from, _) = shown.length(self.cutoff_unit);
+                        let (to, _) = shown.length(unit);
+                        if let Ok(v) = parse_list("cutoffs", &self.cutoffs) {
+                            self.cutoffs = join(v.into_iter().map(|x| x / from * to));
                         }
-                    })
-                    .response
-                    .widget_info(|| egui::WidgetInfo::labeled(egui::Role::ComboBox, true, "unit of the cutoffs"));
-                if unit != self.cutoff_unit {
-                    // Convert the typed numbers; leave text that does not parse alone.
-                    let (from, _) = shown.length(self.cutoff_unit);
-                    let (to, _) = shown.length(unit);
-                    if let Ok(v) = parse_list("cutoffs", &self.cutoffs) {
-                        self.cutoffs = join(v.into_iter().map(|x| x / from * to));
+                        self.cutoff_unit = unit;
                     }
-                    self.cutoff_unit = unit;
-                }
+                });
+                ui.end_row();
+                let l = ui.label(format!("Trial length [{du}]"));
+                ui.add(egui::TextEdit::singleline(&mut self.duration).desired_width(80.0))
+                    .labelled_by(l.id)
+                    .on_hover_text("simulated time of each timestep trial");
+                ui.end_row();
             });
-            ui.end_row();
-            let l = ui.label(format!("Trial length [{du}]"));
-            ui.add(egui::TextEdit::singleline(&mut self.duration).desired_width(80.0)).labelled_by(l.id).on_hover_text("simulated time of each timestep trial");
-            ui.end_row();
-        });
         let request = self.request(running);
         match &request {
             Err(e) => {
                 ui.colored_label(palette::ERROR_TEXT, e);
             }
             Ok(Command::Tune { timesteps, .. }) if shown.real => {
-                ui.weak(format!("= {} τ", timesteps.iter().map(|&v| sig3(v)).collect::<Vec<_>>().join(", ")));
+                ui.weak(format!(
+                    "= {} τ",
+                    timesteps.iter().map(|&v| sig3(v)).collect::<Vec<_>>().join(", ")
+                ));
             }
             Ok(_) => {}
         }
         ui.horizontal(|ui| {
             let can = request.is_ok() && self.scanning.is_none();
-            let start = ui.add_enabled(can, egui::Button::new("Start scan")).on_hover_text("run the scans beside the simulation").on_disabled_hover_text(if self.scanning.is_some() {
-                "a scan is running"
-            } else {
-                "fix the lists first"
-            });
+            let start = ui
+                .add_enabled(can, egui::Button::new("Start scan"))
+                .on_hover_text("run the scans beside the simulation")
+                .on_disabled_hover_text(if self.scanning.is_some() {
+                    "a scan is running"
+                } else {
+                    "fix the lists first"
+                });
             if start.clicked()
                 && let Ok(c) = request.clone()
             {
                 action = Some(self.start_requested(c));
             }
-            if ui.add_enabled(self.scanning.is_none(), egui::Button::new("Default lists")).clicked() {
+            if ui
+                .add_enabled(self.scanning.is_none(), egui::Button::new("Default lists"))
+                .clicked()
+            {
                 self.fill_defaults(running);
             }
             if let Some(t0) = self.scanning {
-                if ui.button("Stop scan").on_hover_text("stops the scan within a fraction of a trial; no results are kept").clicked() {
+                if ui
+                    .button("Stop scan")
+                    .on_hover_text("stops the scan within a fraction of a trial; no results are kept")
+                    .clicked()
+                {
                     action = Some(TuningAction::Cancel);
                 }
                 ui.spinner();
                 ui.label(format!("scanning… {:.0} s", t0.elapsed().as_secs_f64()));
-                ui.ctx().request_repaint_after(std::time::Duration::from_millis(250));
+                ui.ctx()
+                    .request_repaint_after(std::time::Duration::from_millis(250));
             }
         });
         if self.stopped && self.scanning.is_none() {
@@ -344,12 +439,21 @@ impl TuningPanel {
         action
     }
 
-    fn show_timesteps(&mut self, ui: &mut egui::Ui, report: &TuningReport, shown: Shown) -> Option<TuningAction> {
+    fn show_timesteps(
+        &mut self,
+        ui: &mut egui::Ui,
+        report: &TuningReport,
+        shown: Shown,
+    ) -> Option<TuningAction> {
         let mut action = None;
         let (tf, tu) = shown.timestep();
         let (df, du) = shown.duration();
         ui.heading("Timestep scan");
-        ui.weak(format!("constant energy for {} {du} from step {}, per timestep", format_number(report.duration * df), report.from_step));
+        ui.weak(format!(
+            "constant energy for {} {du} from step {}, per timestep",
+            format_number(report.duration * df),
+            report.from_step
+        ));
         match report.recommended {
             Some(dt) => {
                 ui.horizontal(|ui| {
@@ -361,88 +465,192 @@ impl TuningPanel {
                         action = Some(TuningAction::UseTimestep(d));
                     }
                 });
-                if report.timesteps.iter().filter(|r| !r.blew_up).map(|r| r.timestep).fold(f64::MIN, f64::max) == dt {
+                if report
+                    .timesteps
+                    .iter()
+                    .filter(|r| !r.blew_up)
+                    .map(|r| r.timestep)
+                    .fold(f64::MIN, f64::max)
+                    == dt
+                {
                     ui.weak("That is the largest timestep tried: larger ones may pass too.");
                 }
             }
             None => {
-                ui.colored_label(palette::ERROR_TEXT, format!("No timestep tried kept the fluctuation ratio under {:.0}%: try smaller ones.", FLUCTUATION_LIMIT * 100.0));
+                ui.colored_label(
+                    palette::ERROR_TEXT,
+                    format!(
+                        "No timestep tried kept the fluctuation ratio under {:.0}%: try smaller ones.",
+                        FLUCTUATION_LIMIT * 100.0
+                    ),
+                );
             }
         }
         if let Some(u) = &self.used {
             ui.colored_label(palette::CAUTION_TEXT, u);
         }
-        let ok: Vec<[f64; 2]> = report.timesteps.iter().filter(|r| !r.blew_up).map(|r| [r.timestep * tf, r.fluctuation_ratio]).collect();
-        let drift: Vec<[f64; 2]> = report.timesteps.iter().filter(|r| !r.blew_up).map(|r| [r.timestep * tf, r.relative_drift.abs()]).collect();
+        let ok: Vec<[f64; 2]> = report
+            .timesteps
+            .iter()
+            .filter(|r| !r.blew_up)
+            .map(|r| [r.timestep * tf, r.fluctuation_ratio])
+            .collect();
+        let drift: Vec<[f64; 2]> = report
+            .timesteps
+            .iter()
+            .filter(|r| !r.blew_up)
+            .map(|r| [r.timestep * tf, r.relative_drift.abs()])
+            .collect();
         let top = ok.iter().map(|p| p[1]).fold(FLUCTUATION_LIMIT, f64::max) * 1.15;
-        let blown: Vec<[f64; 2]> = report.timesteps.iter().filter(|r| r.blew_up).map(|r| [r.timestep * tf, top]).collect();
+        let blown: Vec<[f64; 2]> = report
+            .timesteps
+            .iter()
+            .filter(|r| r.blew_up)
+            .map(|r| [r.timestep * tf, top])
+            .collect();
         let drift_top = drift.iter().map(|p| p[1]).fold(0.0, f64::max) * 1.15;
         let blown_drift: Vec<[f64; 2]> = blown.iter().map(|p| [p[0], drift_top.max(1e-12)]).collect();
         let rec = report.recommended.map(|dt| dt * tf);
-        let rec_point: Vec<[f64; 2]> = report.timesteps.iter().filter(|r| Some(r.timestep) == report.recommended).map(|r| [r.timestep * tf, r.fluctuation_ratio]).collect();
+        let rec_point: Vec<[f64; 2]> = report
+            .timesteps
+            .iter()
+            .filter(|r| Some(r.timestep) == report.recommended)
+            .map(|r| [r.timestep * tf, r.fluctuation_ratio])
+            .collect();
         let w = ((ui.available_width() - 12.0) / 2.0).max(160.0);
         ui.horizontal(|ui| {
-            small_plot("tune-ratio-plot", w, format!("timestep [{tu}]"), "ΔE/ΔK rms [1]", Corner::LeftTop).include_y(0.0).include_y(top * 1.2).show(ui, |p| {
-                p.line(Line::new("fluctuation ratio", PlotPoints::from(ok.clone())).color(palette::SERIES[0]));
-                p.points(Points::new("fluctuation ratio", PlotPoints::from(ok.clone())).color(palette::SERIES[0]).radius(3.0));
-                p.hline(HLine::new(format!("{:.0}% limit", FLUCTUATION_LIMIT * 100.0), FLUCTUATION_LIMIT).color(palette::ERROR_TEXT).style(egui_plot::LineStyle::dashed_dense()));
+            small_plot(
+                "tune-ratio-plot",
+                w,
+                format!("timestep [{tu}]"),
+                "ΔE/ΔK rms [1]",
+                Corner::LeftTop,
+            )
+            .include_y(0.0)
+            .include_y(top * 1.2)
+            .show(ui, |p| {
+                p.line(
+                    Line::new("fluctuation ratio", PlotPoints::from(ok.clone())).color(palette::SERIES[0]),
+                );
+                p.points(
+                    Points::new("fluctuation ratio", PlotPoints::from(ok.clone()))
+                        .color(palette::SERIES[0])
+                        .radius(3.0),
+                );
+                p.hline(
+                    HLine::new(
+                        format!("{:.0}% limit", FLUCTUATION_LIMIT * 100.0),
+                        FLUCTUATION_LIMIT,
+                    )
+                    .color(palette::ERROR_TEXT)
+                    .style(egui_plot::LineStyle::dashed_dense()),
+                );
                 if let Some(x) = rec {
                     p.vline(VLine::new("recommended timestep", x).color(palette::TARGET));
-                    p.points(Points::new("recommended timestep", PlotPoints::from(rec_point.clone())).color(palette::TARGET).shape(MarkerShape::Diamond).radius(7.0).filled(true));
+                    p.points(
+                        Points::new("recommended timestep", PlotPoints::from(rec_point.clone()))
+                            .color(palette::TARGET)
+                            .shape(MarkerShape::Diamond)
+                            .radius(7.0)
+                            .filled(true),
+                    );
                 }
                 if !blown.is_empty() {
-                    p.points(Points::new("blew up (drawn at the top)", PlotPoints::from(blown.clone())).color(palette::ERROR_TEXT).shape(MarkerShape::Cross).radius(7.0));
+                    p.points(
+                        Points::new("blew up (drawn at the top)", PlotPoints::from(blown.clone()))
+                            .color(palette::ERROR_TEXT)
+                            .shape(MarkerShape::Cross)
+                            .radius(7.0),
+                    );
                 }
             });
-            small_plot("tune-drift-plot", w, format!("timestep [{tu}]"), "|relative drift| [1]", Corner::LeftTop).include_y(0.0).include_y(drift_top * 1.3).show(ui, |p| {
-                p.line(Line::new("|relative drift|", PlotPoints::from(drift.clone())).color(palette::SERIES[3]));
-                p.points(Points::new("|relative drift|", PlotPoints::from(drift.clone())).color(palette::SERIES[3]).radius(3.0));
+            small_plot(
+                "tune-drift-plot",
+                w,
+                format!("timestep [{tu}]"),
+                "|relative drift| [1]",
+                Corner::LeftTop,
+            )
+            .include_y(0.0)
+            .include_y(drift_top * 1.3)
+            .show(ui, |p| {
+                p.line(
+                    Line::new("|relative drift|", PlotPoints::from(drift.clone())).color(palette::SERIES[3]),
+                );
+                p.points(
+                    Points::new("|relative drift|", PlotPoints::from(drift.clone()))
+                        .color(palette::SERIES[3])
+                        .radius(3.0),
+                );
                 if let Some(x) = rec {
                     p.vline(VLine::new("recommended timestep", x).color(palette::TARGET));
                 }
                 if !blown_drift.is_empty() {
-                    p.points(Points::new("blew up (drawn at the top)", PlotPoints::from(blown_drift.clone())).color(palette::ERROR_TEXT).shape(MarkerShape::Cross).radius(7.0));
+                    p.points(
+                        Points::new(
+                            "blew up (drawn at the top)",
+                            PlotPoints::from(blown_drift.clone()),
+                        )
+                        .color(palette::ERROR_TEXT)
+                        .shape(MarkerShape::Cross)
+                        .radius(7.0),
+                    );
                 }
             });
         });
         let (ef, eu) = shown.energy();
-        let per_time = if shown.real { (ef / df, format!("{eu}/{du}")) } else { (1.0, "ε/τ".to_string()) };
-        egui::Grid::new("tune-timestep-table").striped(true).num_columns(6).spacing([12.0, 3.0]).show(ui, |ui| {
-            for h in [format!("timestep [{tu}]"), "steps".into(), "ΔE/ΔK rms".into(), "rel. drift".into(), format!("drift/atom [{}]", per_time.1), "verdict".into()] {
-                ui.label(egui::RichText::new(h).strong());
-            }
-            ui.end_row();
-            for r in &report.timesteps {
-                let recommended = Some(r.timestep) == report.recommended;
-                let cell = |ui: &mut egui::Ui, t: String| {
-                    if recommended {
-                        ui.label(egui::RichText::new(t).color(palette::TARGET));
-                    } else {
-                        ui.label(t);
-                    }
-                };
-                cell(ui, format_number(r.timestep * tf));
-                cell(ui, r.steps.to_string());
-                if r.blew_up {
-                    ui.label("–");
-                    ui.label("–");
-                    ui.label("–");
-                    ui.colored_label(palette::ERROR_TEXT, "blew up");
-                } else {
-                    cell(ui, format!("{:.4}", r.fluctuation_ratio));
-                    cell(ui, format!("{:.2e}", r.relative_drift));
-                    cell(ui, format!("{:.2e}", r.drift_per_atom_per_tau * per_time.0));
-                    if recommended {
-                        cell(ui, "recommended".into());
-                    } else if r.fluctuation_ratio <= FLUCTUATION_LIMIT {
-                        ui.label("within limit");
-                    } else {
-                        ui.colored_label(palette::ERROR_TEXT, "too noisy");
-                    }
+        let per_time = if shown.real {
+            (ef / df, format!("{eu}/{du}"))
+        } else {
+            (1.0, "ε/τ".to_string())
+        };
+        egui::Grid::new("tune-timestep-table")
+            .striped(true)
+            .num_columns(6)
+            .spacing([12.0, 3.0])
+            .show(ui, |ui| {
+                for h in [
+                    format!("timestep [{tu}]"),
+                    "steps".into(),
+                    "ΔE/ΔK rms".into(),
+                    "rel. drift".into(),
+                    format!("drift/atom [{}]", per_time.1),
+                    "verdict".into(),
+                ] {
+                    ui.label(egui::RichText::new(h).strong());
                 }
                 ui.end_row();
-            }
-        });
+                for r in &report.timesteps {
+                    let recommended = Some(r.timestep) == report.recommended;
+                    let cell = |ui: &mut egui::Ui, t: String| {
+                        if recommended {
+                            ui.label(egui::RichText::new(t).color(palette::TARGET));
+                        } else {
+                            ui.label(t);
+                        }
+                    };
+                    cell(ui, format_number(r.timestep * tf));
+                    cell(ui, r.steps.to_string());
+                    if r.blew_up {
+                        ui.label("–");
+                        ui.label("–");
+                        ui.label("–");
+                        ui.colored_label(palette::ERROR_TEXT, "blew up");
+                    } else {
+                        cell(ui, format!("{:.4}", r.fluctuation_ratio));
+                        cell(ui, format!("{:.2e}", r.relative_drift));
+                        cell(ui, format!("{:.2e}", r.drift_per_atom_per_tau * per_time.0));
+                        if recommended {
+                            cell(ui, "recommended".into());
+                        } else if r.fluctuation_ratio <= FLUCTUATION_LIMIT {
+                            ui.label("within limit");
+                        } else {
+                            ui.colored_label(palette::ERROR_TEXT, "too noisy");
+                        }
+                    }
+                    ui.end_row();
+                }
+            });
         action
     }
 
@@ -452,7 +660,9 @@ impl TuningPanel {
         let (pf, pu) = shown.pressure();
         ui.heading("Cutoff scan");
         ui.weak(format!("{:?}, averaged over {} configurations {} steps apart; full estimate: unshifted pair terms inside the cutoff plus analytic tail corrections", report.potential, report.configurations, 200));
-        let series = |f: &dyn Fn(&crate::engine::tuning::CutoffRow) -> f64| -> Vec<[f64; 2]> { report.cutoffs.iter().map(|r| [r.cutoff * lf, f(r)]).collect() };
+        let series = |f: &dyn Fn(&crate::engine::tuning::CutoffRow) -> f64| -> Vec<[f64; 2]> {
+            report.cutoffs.iter().map(|r| [r.cutoff * lf, f(r)]).collect()
+        };
         let u_mode = series(&|r| r.potential * ef);
         let u_full = series(&|r| r.potential_full_estimate * ef);
         let p_mode = series(&|r| r.pressure * pf);
@@ -460,29 +670,54 @@ impl TuningPanel {
         let w = ((ui.available_width() - 12.0) / 2.0).max(160.0);
         let mode = format!("{:?}", report.potential);
         ui.horizontal(|ui| {
-            for (id, label, a, b) in [("tune-energy-plot", format!("U/N [{eu}]"), &u_mode, &u_full), ("tune-pressure-plot", format!("P [{pu}]"), &p_mode, &p_full)] {
+            for (id, label, a, b) in [
+                ("tune-energy-plot", format!("U/N [{eu}]"), &u_mode, &u_full),
+                ("tune-pressure-plot", format!("P [{pu}]"), &p_mode, &p_full),
+            ] {
                 small_plot(id, w, format!("cutoff [{lu}]"), &label, Corner::RightTop).show(ui, |p| {
                     p.line(Line::new(mode.clone(), PlotPoints::from(a.clone())).color(palette::SERIES[2]));
-                    p.points(Points::new(mode.clone(), PlotPoints::from(a.clone())).color(palette::SERIES[2]).radius(3.0));
-                    p.line(Line::new("full estimate", PlotPoints::from(b.clone())).color(palette::SERIES[4]).style(egui_plot::LineStyle::dashed_loose()));
-                    p.points(Points::new("full estimate", PlotPoints::from(b.clone())).color(palette::SERIES[4]).radius(3.0));
+                    p.points(
+                        Points::new(mode.clone(), PlotPoints::from(a.clone()))
+                            .color(palette::SERIES[2])
+                            .radius(3.0),
+                    );
+                    p.line(
+                        Line::new("full estimate", PlotPoints::from(b.clone()))
+                            .color(palette::SERIES[4])
+                            .style(egui_plot::LineStyle::dashed_loose()),
+                    );
+                    p.points(
+                        Points::new("full estimate", PlotPoints::from(b.clone()))
+                            .color(palette::SERIES[4])
+                            .radius(3.0),
+                    );
                 });
             }
         });
-        egui::Grid::new("tune-cutoff-table").striped(true).num_columns(5).spacing([12.0, 3.0]).show(ui, |ui| {
-            for h in [format!("cutoff [{lu}]"), format!("U/N as run [{eu}]"), format!("U/N full est. [{eu}]"), format!("P as run [{pu}]"), format!("P full est. [{pu}]")] {
-                ui.label(egui::RichText::new(h).strong());
-            }
-            ui.end_row();
-            for r in &report.cutoffs {
-                ui.label(format_number(r.cutoff * lf));
-                ui.label(format!("{:.4}", r.potential * ef));
-                ui.label(format!("{:.4}", r.potential_full_estimate * ef));
-                ui.label(format!("{:.4}", r.pressure * pf));
-                ui.label(format!("{:.4}", r.pressure_full_estimate * pf));
+        egui::Grid::new("tune-cutoff-table")
+            .striped(true)
+            .num_columns(5)
+            .spacing([12.0, 3.0])
+            .show(ui, |ui| {
+                for h in [
+                    format!("cutoff [{lu}]"),
+                    format!("U/N as run [{eu}]"),
+                    format!("U/N full est. [{eu}]"),
+                    format!("P as run [{pu}]"),
+                    format!("P full est. [{pu}]"),
+                ] {
+                    ui.label(egui::RichText::new(h).strong());
+                }
                 ui.end_row();
-            }
-        });
+                for r in &report.cutoffs {
+                    ui.label(format_number(r.cutoff * lf));
+                    ui.label(format!("{:.4}", r.potential * ef));
+                    ui.label(format!("{:.4}", r.potential_full_estimate * ef));
+                    ui.label(format!("{:.4}", r.pressure * pf));
+                    ui.label(format!("{:.4}", r.pressure_full_estimate * pf));
+                    ui.end_row();
+                }
+            });
     }
 }
 
@@ -493,7 +728,12 @@ fn small_plot(id: &str, width: f32, x: String, y: &str, legend: Corner) -> Plot<
         .height(150.0)
         .x_axis_label(x)
         .y_axis_label(y.to_string())
-        .legend(Legend::default().position(legend).text_style(egui::TextStyle::Small).background_alpha(0.6))
+        .legend(
+            Legend::default()
+                .position(legend)
+                .text_style(egui::TextStyle::Small)
+                .background_alpha(0.6),
+        )
         .allow_scroll(false)
         .y_axis_min_width(56.0)
         .show_background(false)
@@ -507,7 +747,11 @@ fn axis_label(m: egui_plot::GridMark) -> String {
         return "0".into();
     }
     let decimals = (-m.step_size.log10().floor()).max(0.0) as usize;
-    if decimals > 4 { format!("{:.1e}", m.value) } else { format!("{:.decimals$}", m.value) }
+    if decimals > 4 {
+        format!("{:.1e}", m.value)
+    } else {
+        format!("{:.decimals$}", m.value)
+    }
 }
 
 #[cfg(test)]
@@ -515,7 +759,11 @@ mod tests {
     use super::*;
 
     fn reduced_setup() -> Setup {
-        let mut s = Setup::parse(include_str!("../../assets/reduced-lj-timestep-check.ron"), "reduced").unwrap();
+        let mut s = Setup::parse(
+            include_str!("../../assets/reduced-lj-timestep-check.ron"),
+            "reduced",
+        )
+        .unwrap();
         s.atoms = 256;
         s
     }
@@ -528,7 +776,11 @@ mod tests {
         // 256 atoms at 0.8442: half box 3.36 σ, skin 0.3 σ: 2, 2.5 and 3 fit.
         assert_eq!(p.cutoffs, "2, 2.5, 3");
         match p.request(&s).unwrap() {
-            Command::Tune { timesteps, cutoffs, duration } => {
+            Command::Tune {
+                timesteps,
+                cutoffs,
+                duration,
+            } => {
                 assert_eq!(timesteps.len(), 5);
                 assert_eq!(cutoffs, vec![2.0, 2.5, 3.0]);
                 assert_eq!(duration, 5.0);
@@ -544,21 +796,37 @@ mod tests {
         let mut p = TuningPanel::for_setup(&s);
         assert_eq!(p.cutoff_unit, LengthUnit::Angstrom);
         assert!(p.timesteps.starts_with("5, 10, 15"), "{}", p.timesteps);
-        let Command::Tune { timesteps, .. } = p.request(&s).unwrap() else { panic!() };
+        let Command::Tune { timesteps, .. } = p.request(&s).unwrap() else {
+            panic!()
+        };
         let tau_fs = s.units().tau_fs();
         assert!((timesteps[1] - 10.0 / tau_fs).abs() < 1e-12);
         p.timesteps = "10, 500".into();
         let e = p.request(&s).unwrap_err();
-        assert!(e.starts_with("timesteps: 500 fs is out of range; allowed:") && e.contains(" fs to "), "{e}");
+        assert!(
+            e.starts_with("timesteps: 500 fs is out of range; allowed:") && e.contains(" fs to "),
+            "{e}"
+        );
         p.timesteps = "10, ten".into();
-        assert!(p.request(&s).unwrap_err().contains("timesteps: \"ten\" is not a number"));
+        assert!(
+            p.request(&s)
+                .unwrap_err()
+                .contains("timesteps: \"ten\" is not a number")
+        );
         p.timesteps = "10".into();
         p.cutoffs = "0.5".into();
         let e = p.request(&s).unwrap_err();
-        assert!(e.starts_with("cutoffs: 0.5 Å is out of range; allowed:") && e.contains("Å"), "{e}");
+        assert!(
+            e.starts_with("cutoffs: 0.5 Å is out of range; allowed:") && e.contains("Å"),
+            "{e}"
+        );
         p.cutoffs = "9".into();
         p.duration = "0".into();
-        assert!(p.request(&s).unwrap_err().starts_with("duration: 0 ps is out of range"));
+        assert!(
+            p.request(&s)
+                .unwrap_err()
+                .starts_with("duration: 0 ps is out of range")
+        );
     }
 
     fn report_from(step: u64) -> TuningReport {

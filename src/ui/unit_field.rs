@@ -33,7 +33,12 @@ pub enum DensityUnit {
 impl Quantity for DensityUnit {
     type Value = Density;
     fn units() -> &'static [Self] {
-        &[Self::GramsPerCubicCentimetre, Self::KilogramsPerCubicMetre, Self::PerCubicNanometre, Self::Reduced]
+        &[
+            Self::GramsPerCubicCentimetre,
+            Self::KilogramsPerCubicMetre,
+            Self::PerCubicNanometre,
+            Self::Reduced,
+        ]
     }
     fn symbol(self) -> &'static str {
         match self {
@@ -234,7 +239,11 @@ pub fn format_number(v: f64) -> String {
     if (1e-3..1e6).contains(&a) {
         let digits = (5 - a.log10().floor() as i32).clamp(0, 9) as usize;
         let s = format!("{v:.digits$}");
-        if s.contains('.') { s.trim_end_matches('0').trim_end_matches('.').to_string() } else { s }
+        if s.contains('.') {
+            s.trim_end_matches('0').trim_end_matches('.').to_string()
+        } else {
+            s
+        }
     } else {
         format!("{v:.5e}")
     }
@@ -257,19 +266,26 @@ impl<Q: Quantity> UnitField<Q> {
     pub fn from_value(v: Q::Value) -> Self {
         let (unit, x) = Q::split(v);
         let text = format_number(x);
-        UnitField { exact: Some((x, text.clone())), text, unit }
+        UnitField {
+            exact: Some((x, text.clone())),
+            text,
+            unit,
+        }
     }
 
     /// The typed number, or a message naming the field and the problem.
     pub fn number(&self, field: &str) -> Result<f64, String> {
         if let Some((v, shown)) = &self.exact
-            && *shown == self.text {
-                return Ok(*v);
-            }
+            && *shown == self.text
+        {
+            return Ok(*v);
+        }
         let t = self.text.trim();
         match t.parse::<f64>() {
             Ok(x) if x.is_finite() => Ok(x),
-            _ => Err(format!("{field}: \"{t}\" is not a number; type a decimal number such as 1.25")),
+            _ => Err(format!(
+                "{field}: \"{t}\" is not a number; type a decimal number such as 1.25"
+            )),
         }
     }
 
@@ -285,19 +301,27 @@ impl<Q: Quantity> UnitField<Q> {
             return;
         }
         if let Ok(x) = self.number("")
-            && let (Ok(r), Ok(per)) = (Q::reduce(setup, self.unit.make(x)), Q::reduce(setup, unit.make(1.0)))
-                && per != 0.0 {
-                    let v = r / per;
-                    self.text = format_number(v);
-                    self.exact = Some((v, self.text.clone()));
-                }
+            && let (Ok(r), Ok(per)) = (
+                Q::reduce(setup, self.unit.make(x)),
+                Q::reduce(setup, unit.make(1.0)),
+            )
+            && per != 0.0
+        {
+            let v = r / per;
+            self.text = format_number(v);
+            self.exact = Some((v, self.text.clone()));
+        }
         self.unit = unit;
     }
 
     /// "= 0.00181 τ" (for a real unit) or "= 5 fs" (for the reduced unit), if convertible.
     pub fn equivalent(&self, setup: &Setup) -> Option<String> {
         let x = self.number("").ok()?;
-        let other = if self.unit.is_reduced() { *Q::units().iter().find(|u| !u.is_reduced())? } else { *Q::units().iter().find(|u| u.is_reduced())? };
+        let other = if self.unit.is_reduced() {
+            *Q::units().iter().find(|u| !u.is_reduced())?
+        } else {
+            *Q::units().iter().find(|u| u.is_reduced())?
+        };
         let r = Q::reduce(setup, self.unit.make(x)).ok()?;
         let per = Q::reduce(setup, other.make(1.0)).ok()?;
         Some(format!("= {} {}", format_number(r / per), other.symbol()))
@@ -309,7 +333,9 @@ impl<Q: Quantity> UnitField<Q> {
         let real = setup.units().has_real_units();
         ui.horizontal(|ui| {
             let l = ui.label(label);
-            let r = ui.add(egui::TextEdit::singleline(&mut self.text).desired_width(80.0)).labelled_by(l.id);
+            let r = ui
+                .add(egui::TextEdit::singleline(&mut self.text).desired_width(80.0))
+                .labelled_by(l.id);
             changed |= r.changed();
             let mut picked = self.unit;
             egui::ComboBox::from_id_salt(("unit", label))
@@ -324,15 +350,16 @@ impl<Q: Quantity> UnitField<Q> {
                 })
                 .response
                 .on_hover_text(format!("unit of {label}"))
-                .widget_info(|| egui::WidgetInfo::labeled(egui::Role::ComboBox, true, format!("unit of {label}")));
+                .widget_info(|| {
+                    egui::WidgetInfo::labeled(egui::Role::ComboBox, true, format!("unit of {label}"))
+                });
             if picked != self.unit {
                 self.set_unit(setup, picked);
                 changed = true;
             }
-            if real
-                && let Some(eq) = self.equivalent(setup) {
-                    ui.weak(eq);
-                }
+            if real && let Some(eq) = self.equivalent(setup) {
+                ui.weak(eq);
+            }
         });
         changed
     }

@@ -88,9 +88,10 @@ impl WatchRecorder {
     /// Call once per displayed frame.
     pub fn frame(&mut self, now: Instant) {
         if let Some(prev) = self.last
-            && self.frames_seen > WARMUP_FRAMES {
-                self.intervals.push((now - prev).as_secs_f64() * 1e3);
-            }
+            && self.frames_seen > WARMUP_FRAMES
+        {
+            self.intervals.push((now - prev).as_secs_f64() * 1e3);
+        }
         self.last = Some(now);
         self.frames_seen += 1;
     }
@@ -147,8 +148,16 @@ impl WatchRecorder {
             frame_time_max_ms: v.last().copied().unwrap_or(0.0),
             ui_build_p50_ms: at(&b, 50.0),
             ui_build_p95_ms: at(&b, 95.0),
-            frame_time_mean_ms: if v.is_empty() { 0.0 } else { v.iter().sum::<f64>() / v.len() as f64 },
-            atom_steps_per_second: if secs > 0.0 { steps as f64 * atoms as f64 / secs } else { 0.0 },
+            frame_time_mean_ms: if v.is_empty() {
+                0.0
+            } else {
+                v.iter().sum::<f64>() / v.len() as f64
+            },
+            atom_steps_per_second: if secs > 0.0 {
+                steps as f64 * atoms as f64 / secs
+            } else {
+                0.0
+            },
             steps_advanced: steps,
             wall_seconds: secs,
             view: view.into(),

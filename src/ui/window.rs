@@ -28,7 +28,9 @@ pub fn run(opts: StartOptions, size: Option<[f32; 2]>) -> anyhow::Result<()> {
             cc.egui_ctx.set_theme(egui::Theme::Dark);
             // One background for the whole window, the particle view included: the view then
             // needs no clearing of its own (see gl_spheres).
-            cc.egui_ctx.style_mut_of(egui::Theme::Dark, |s| s.visuals.panel_fill = super::palette::VIEW_BACKGROUND);
+            cc.egui_ctx.style_mut_of(egui::Theme::Dark, |s| {
+                s.visuals.panel_fill = super::palette::VIEW_BACKGROUND
+            });
             Ok(Box::new(NoblescopeApp::new(cc.storage, opts)))
         }),
     )

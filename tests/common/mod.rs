@@ -1,11 +1,18 @@
 //! Shared helpers for the physics reference tests.
 #![allow(dead_code)]
 
-use noblescope::analysis::{block_average, Estimate};
+use noblescope::analysis::{Estimate, block_average};
 use noblescope::physics::{Observables, PotentialMode, Simulation, SimulationSpec, Species, Thermostat};
 
 /// A single-species reduced-LJ spec.
-pub fn reduced_spec(atoms: usize, density: f64, temperature: f64, cutoff: f64, potential: PotentialMode, thermostat: Thermostat) -> SimulationSpec {
+pub fn reduced_spec(
+    atoms: usize,
+    density: f64,
+    temperature: f64,
+    cutoff: f64,
+    potential: PotentialMode,
+    thermostat: Thermostat,
+) -> SimulationSpec {
     SimulationSpec {
         kinds: vec![Species::ReducedLJ],
         counts: vec![atoms],

@@ -17,12 +17,27 @@ pub fn small_argon() -> Setup {
 
 /// The app in a headless harness (no GL: the sphere callback is simply not run).
 pub fn harness(setup: Setup) -> Harness<'static, NoblescopeApp> {
-    let app = NoblescopeApp::new(None, StartOptions { setup: Some((setup, None)), view: Some(noblescope::ui::watch::StartView::Setup), watch: None, persist: false });
-    Harness::builder().with_size(egui::vec2(1500.0, 1000.0)).build_ui_state(|ui, app: &mut NoblescopeApp| app.show(ui), app)
+    let app = NoblescopeApp::new(
+        None,
+        StartOptions {
+            setup: Some((setup, None)),
+            view: Some(noblescope::ui::watch::StartView::Setup),
+            watch: None,
+            persist: false,
+        },
+    );
+    Harness::builder()
+        .with_size(egui::vec2(1500.0, 1000.0))
+        .build_ui_state(|ui, app: &mut NoblescopeApp| app.show(ui), app)
 }
 
 /// Steps the harness until `done` holds, failing after `secs` seconds.
-pub fn step_until(h: &mut Harness<'static, NoblescopeApp>, secs: u64, what: &str, done: impl Fn(&NoblescopeApp) -> bool) {
+pub fn step_until(
+    h: &mut Harness<'static, NoblescopeApp>,
+    secs: u64,
+    what: &str,
+    done: impl Fn(&NoblescopeApp) -> bool,
+) {
     let until = Instant::now() + Duration::from_secs(secs);
     loop {
         h.step();
