@@ -35,6 +35,48 @@ pub fn nice_grid(input: GridInput) -> Vec<GridMark> {
         .collect()
 }
 
+/// A tick label with as many decimals as the tick spacing needs, so that no two ticks of one
+/// axis read the same: fixed point down to 10⁻⁴ steps, then scientific with as many mantissa
+/// digits as lie between the value's magnitude and the step's. Zero is written "0".
+pub fn tick_label(mark: GridMark) -> String {
+    let (v, step) = (mark.value, mark.step_size);
+    if !(v.is_finite() && step.is_finite() && step > 0.0) {
+        return format!("{v}");
+    }
+    if v.abs() < step * 1e-6 {
+        return "0".into();
+    }
+    let step_exp = step.log10().floor();
+    let decimals = (-step_exp).max(0.0) as usize;
+    if decimals <= 4 && v.abs() < 1e6 {
+        return format!("{v:.decimals$}");
+    }
+    let digits = (v.abs().log10().floor() - step_exp).max(0.0) as usize;
+    format!("{v:.digits$e}")
+}
+
+/// The y range a plot should at least show for data spanning `range`: the data's own range, or
+/// if that is narrower than `min_span` (a constant series, or one at step 0), `min_span` around
+/// its middle, where `min_span` is a thousandth of the middle's size but at least `floor`.
+/// Without it the axis zooms into round-off and labels ticks like `124.9999999999999`.
+pub fn shown_y_range(range: Option<(f64, f64)>, floor: f64) -> Option<(f64, f64)> {
+    let (lo, hi) = range?;
+    if !(lo.is_finite() && hi.is_finite()) {
+        return None;
+    }
+    let mid = 0.5 * (lo + hi);
+    let min_span = (1e-3 * mid.abs()).max(floor);
+    if hi - lo >= min_span {
+        return Some((lo, hi));
+    }
+    Some((mid - 0.5 * min_span, mid + 0.5 * min_span))
+}
+
+/// Smallest y span of the drift plot (relative drift is dimensionless and starts at 0).
+const DRIFT_MIN_SPAN: f64 = 1e-6;
+/// Smallest y span of the other plots, in their display units.
+const VALUE_MIN_SPAN: f64 = 1e-3;
+
 /// Buckets per plotted series (each draws at most twice this many points).
 pub const BUCKETS: usize = 800;
 /// Raw samples kept for CSV export before thinning starts.
@@ -176,9 +218,10 @@ impl Plots {
         let w = (avail.x - 8.0) / 2.0;
         let h = ((avail.y - 8.0) / 2.0).max(90.0);
         let target = self.target;
+        let latest = self.last.map_or(0.0, |o| o.time * self.time_factor());
         let link = ui.scope_id().with("time-axis");
-        let plot = |name: &str, ylabel: String| {
-            Plot::new(name.to_string())
+        let plot = |name: &str, ylabel: String, range: Option<(f64, f64)>| {
+            let mut plot = Plot::new(name.to_string())
                 .width(w)
                 .height(h)
                 .x_axis_label(format!("time [{tu}]"))
@@ -191,7 +234,29 @@ impl Plots {
                 .show_background(false)
                 .y_grid_spacer(nice_grid)
                 .x_grid_spacer(nice_grid)
+                .x_axis_formatter(|m, _| tick_label(m))
+                .y_axis_formatter(|m, _| tick_label(m));
+            if let Some((lo, hi)) = range {
+                plot = plot.include_y(lo).include_y(hi);
+            }
+            // Time runs from 0; at step 0 one time unit is shown instead of a zoom into nothing.
+            plot.include_x(0.0)
+                .include_x(if latest > 0.0 { latest } else { 1.0 })
         };
+        let joint = |a: Option<(f64, f64)>, b: Option<(f64, f64)>| match (a, b) {
+            (Some(a), Some(b)) => Some((a.0.min(b.0), a.1.max(b.1))),
+            (a, b) => a.or(b),
+        };
+        let drift_range = shown_y_range(self.drift.y_range(), DRIFT_MIN_SPAN);
+        let energy_range = shown_y_range(
+            joint(
+                joint(self.kinetic.y_range(), self.potential.y_range()),
+                self.total.y_range(),
+            ),
+            VALUE_MIN_SPAN,
+        );
+        let temperature_range = shown_y_range(self.temperature.y_range(), VALUE_MIN_SPAN);
+        let pressure_range = shown_y_range(self.pressure.y_range(), VALUE_MIN_SPAN);
         let Plots {
             drift,
             kinetic,
@@ -202,13 +267,13 @@ impl Plots {
             ..
         } = self;
         ui.horizontal(|ui| {
-            plot("drift-plot", "relative drift [1]".into()).show(ui, |p| {
+            plot("drift-plot", "relative drift [1]".into(), drift_range).show(ui, |p| {
                 p.line(
                     Line::new("conserved energy drift", PlotPoints::Borrowed(drift.points()))
                         .color(palette::SERIES[0]),
                 );
             });
-            plot("energy-plot", "energy per atom [ε]".into()).show(ui, |p| {
+            plot("energy-plot", "energy per atom [ε]".into(), energy_range).show(ui, |p| {
                 p.line(
                     Line::new("kinetic", PlotPoints::Borrowed(kinetic.points())).color(palette::SERIES[1]),
                 );
@@ -220,7 +285,12 @@ impl Plots {
             });
         });
         ui.horizontal(|ui| {
-            plot("temperature-plot", format!("temperature [{tunit}]")).show(ui, |p| {
+            plot(
+                "temperature-plot",
+                format!("temperature [{tunit}]"),
+                temperature_range,
+            )
+            .show(ui, |p| {
                 p.line(
                     Line::new("temperature", PlotPoints::Borrowed(temperature.points()))
                         .color(palette::SERIES[4]),
@@ -233,7 +303,7 @@ impl Plots {
                     );
                 }
             });
-            plot("pressure-plot", format!("pressure [{punit}]")).show(ui, |p| {
+            plot("pressure-plot", format!("pressure [{punit}]"), pressure_range).show(ui, |p| {
                 p.line(
                     Line::new("pressure", PlotPoints::Borrowed(pressure.points())).color(palette::SERIES[5]),
                 );
@@ -268,6 +338,55 @@ mod tests {
             })
             .is_empty()
         );
+    }
+
+    fn labels(bounds: (f64, f64)) -> Vec<String> {
+        nice_grid(GridInput {
+            bounds,
+            base_step_size: 0.0,
+        })
+        .into_iter()
+        .map(tick_label)
+        .collect()
+    }
+
+    #[test]
+    fn tick_labels_never_repeat_and_carry_the_decimals_the_spacing_needs() {
+        // Seen in the window: time ticks 0.05 apart printed "0.0, 0.1, 0.1, 0.2" and drift ticks
+        // "0.0001, 0.0001, 0.0000, -0.0001".
+        assert_eq!(labels((0.0, 0.2)), ["0", "0.05", "0.10", "0.15", "0.20"]);
+        assert_eq!(
+            labels((-1.2e-4, 1.2e-4)),
+            ["-1.0e-4", "-5e-5", "0", "5e-5", "1.0e-4"]
+        );
+        for bounds in [
+            (1.0499e-3, 1.0501e-3),
+            (124.9999, 125.0001),
+            (-3e7, 3e7),
+            (0.0, 1.0),
+            (-6.1, -5.9),
+        ] {
+            let l = labels(bounds);
+            let mut unique = l.clone();
+            unique.dedup();
+            assert_eq!(unique, l, "{bounds:?}");
+            assert!(l.len() >= 3, "{bounds:?}: {l:?}");
+        }
+    }
+
+    #[test]
+    fn a_constant_series_is_shown_with_a_minimum_span_around_its_value() {
+        // At step 0 of the bundled scenario the temperature axis read 124.9999999999999.
+        let (lo, hi) = shown_y_range(Some((125.0, 125.0)), VALUE_MIN_SPAN).unwrap();
+        assert!((hi - lo - 0.125).abs() < 1e-12 && (lo + hi - 250.0).abs() < 1e-12);
+        assert_eq!(labels((lo, hi)), ["124.95", "125.00", "125.05"]);
+        assert_eq!(
+            shown_y_range(Some((0.0, 0.0)), DRIFT_MIN_SPAN),
+            Some((-5e-7, 5e-7))
+        );
+        // A series that varies keeps its own range.
+        assert_eq!(shown_y_range(Some((1.0, 2.0)), VALUE_MIN_SPAN), Some((1.0, 2.0)));
+        assert_eq!(shown_y_range(None, VALUE_MIN_SPAN), None);
     }
 
     #[test]
