@@ -491,6 +491,17 @@ impl Setup {
             thermostat,
             seed: self.seed,
         };
+        if let Some(i) = spec.counts.iter().position(|&c| c == 0) {
+            let n = self.atoms;
+            let one = format!("{:.2e}", 1.0 / n as f64)
+                .parse::<f64>()
+                .unwrap_or(1.0 / n as f64);
+            return Err(SetupError::field(
+                &format!("species[{i}].share"),
+                format!("{:?} (gives 0 of {n} atoms)", self.species[i].share),
+                format!("at least 1/{n} ≈ {one:?} so that the species has one atom, or more atoms"),
+            ));
+        }
         spec.check()?;
         Ok(spec)
     }
