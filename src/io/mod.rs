@@ -2,6 +2,7 @@
 
 pub mod checkpoint;
 pub mod energy_log;
+pub mod run_folder;
 pub mod setup;
 pub mod summary;
 pub mod trajectory;
