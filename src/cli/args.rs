@@ -123,13 +123,17 @@ pub enum Cmd {
     },
 }
 
+/// A `--size` that is not WIDTHxHEIGHT within the allowed range.
+#[derive(Debug, thiserror::Error)]
+#[error("--size: \"{text}\" is not a size; allowed: WIDTHxHEIGHT with each from 400 to 8000, e.g. 1440x900")]
+pub struct SizeError {
+    /// The text given.
+    pub text: String,
+}
+
 /// Parses `--size` ("1440x900").
-fn parse_size(text: &str) -> Result<[f32; 2], String> {
-    let bad = || {
-        format!(
-            "--size: \"{text}\" is not a size; allowed: WIDTHxHEIGHT with each from 400 to 8000, e.g. 1440x900"
-        )
-    };
+fn parse_size(text: &str) -> Result<[f32; 2], SizeError> {
+    let bad = || SizeError { text: text.into() };
     let (w, h) = text.split_once(['x', 'X']).ok_or_else(bad)?;
     let w: f32 = w.trim().parse().map_err(|_| bad())?;
     let h: f32 = h.trim().parse().map_err(|_| bad())?;

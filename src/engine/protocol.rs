@@ -102,19 +102,33 @@ pub enum Event {
 pub enum CommandKind {
     /// The engine starting on its first setup (not a command).
     Start,
+    /// [`Command::Run`].
     Run,
+    /// [`Command::Pause`].
     Pause,
+    /// [`Command::StepOnce`].
     StepOnce,
+    /// [`Command::Apply`].
     Apply,
+    /// [`Command::Reset`].
     Reset,
+    /// [`Command::SetTimestep`].
     SetTimestep,
+    /// [`Command::SetInteraction`].
     SetInteraction,
+    /// [`Command::SetThermostat`].
     SetThermostat,
+    /// [`Command::SaveCheckpoint`].
     SaveCheckpoint,
+    /// [`Command::LoadCheckpoint`].
     LoadCheckpoint,
+    /// [`Command::Rewind`].
     Rewind,
+    /// [`Command::Tune`].
     Tune,
+    /// [`Command::CancelTune`].
     CancelTune,
+    /// [`Command::Shutdown`].
     Shutdown,
 }
 
