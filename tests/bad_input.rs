@@ -1,7 +1,7 @@
 //! The command line on bad input, on a good run, and on a run that blows up.
 //!
-//! Contract under test: `src/main.rs` and `engine::headless::RunError` (exit code 2 for bad
-//! input, 1 for a failed run, 0 for success) and `io::setup::Setup::resolve` ("Errors name the
+//! Contract under test: the command line (`src/cli/`: `cli::exit_code` gives exit code 2 for
+//! bad input, 1 for a failed run, 0 for success) and `io::setup::Setup::resolve` ("Errors name the
 //! field, the value given and the allowed range"); parse errors carry file:line:column
 //! (`SetupError::Parse`, 1-based line and column as RON 0.12 reports them). Nothing may be written
 //! for bad input: the `--out` folder is not created, and an existing run is left as it was.

@@ -2,7 +2,7 @@
 //! engine keeps serving commands meanwhile, bad requests are refused with field, value and
 //! allowed range, and only one scan runs at a time.
 
-use noblescope::engine::{Command, EngineHandle, Event};
+use noblescope::engine::{Command, CommandKind, EngineHandle, Event, TuneRequest};
 use noblescope::io::setup::Setup;
 use std::time::{Duration, Instant};
 
@@ -41,7 +41,7 @@ fn rejection(h: &EngineHandle, c: Command) -> String {
     let mut seen = Vec::new();
     match wait_for(h, &mut seen, 10, |e| matches!(e, Event::Rejected { .. })) {
         Some(Event::Rejected { command, reason }) => {
-            assert_eq!(command, "Tune");
+            assert_eq!(command, CommandKind::Tune);
             reason
         }
         _ => panic!("no rejection; saw {seen:?}"),
@@ -49,11 +49,11 @@ fn rejection(h: &EngineHandle, c: Command) -> String {
 }
 
 fn tune(timesteps: &[f64], cutoffs: &[f64], duration: f64) -> Command {
-    Command::Tune {
-        timesteps: timesteps.to_vec(),
-        cutoffs: cutoffs.to_vec(),
-        duration,
-    }
+    Command::Tune(TuneRequest {
+        timesteps_tau: timesteps.to_vec(),
+        cutoffs_sigma: cutoffs.to_vec(),
+        duration_tau: duration,
+    })
 }
 
 #[test]
@@ -99,11 +99,15 @@ fn a_scan_leaves_the_simulation_where_it_was_and_reports_every_row() {
     );
     assert_eq!(report.from_step, 2);
     assert_eq!(
-        report.timesteps.iter().map(|r| r.timestep).collect::<Vec<_>>(),
+        report
+            .timesteps
+            .iter()
+            .map(|r| r.timestep_tau)
+            .collect::<Vec<_>>(),
         vec![0.002, 0.005, 0.05]
     );
     assert_eq!(
-        report.cutoffs.iter().map(|r| r.cutoff).collect::<Vec<_>>(),
+        report.cutoffs.iter().map(|r| r.cutoff_sigma).collect::<Vec<_>>(),
         vec![2.0, 2.5]
     );
     assert_eq!(report.configurations, 5);
@@ -227,7 +231,7 @@ fn a_running_scan_can_be_stopped_and_another_started() {
     h.send(Command::CancelTune);
     match wait_for(&h, &mut seen, 10, |e| matches!(e, Event::Rejected { .. })) {
         Some(Event::Rejected { command, reason }) => {
-            assert_eq!(command, "CancelTune");
+            assert_eq!(command, CommandKind::CancelTune);
             assert!(reason.contains("no tuning scan is running"), "{reason}");
         }
         e => panic!("no rejection: {e:?}"),

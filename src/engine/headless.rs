@@ -2,8 +2,10 @@
 //! trajectory written to an output folder.
 
 use super::session::Session;
+use super::watchdog::Alarm;
 use crate::analysis::RadialDistribution;
 use crate::io::energy_log::EnergyLog;
+use crate::io::rdf_csv::rdf_csv;
 use crate::io::summary::{RunFacts, Summary};
 use crate::io::trajectory;
 use crate::physics::Observables;
@@ -30,22 +32,12 @@ pub struct HeadlessOptions {
 /// Why a headless run stopped early.
 #[derive(Debug, thiserror::Error)]
 pub enum RunError {
-    /// The inputs cannot be run (exit code 2).
+    /// The inputs cannot be run (the command line exits with code 2).
     #[error("{0}")]
     BadInput(String),
-    /// The run itself failed (exit code 1).
+    /// The run itself failed (the command line exits with code 1).
     #[error("{0}")]
     Failed(String),
-}
-
-impl RunError {
-    /// Process exit code: 2 for bad input, 1 for a failed run.
-    pub fn exit_code(&self) -> i32 {
-        match self {
-            RunError::BadInput(_) => 2,
-            RunError::Failed(_) => 1,
-        }
-    }
 }
 
 /// Files a run writes into its output folder.
@@ -125,7 +117,7 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
         }
         if let Some(alarm) = out.alarm {
             match alarm {
-                super::protocol::Alarm::NonFinite { step, atoms } => {
+                Alarm::NonFinite { step, atoms } => {
                     failure = Some(format!(
                         "non-finite energy at step {step}; atoms involved: {atoms:?}. Lower the timestep (now {:?}) or check the density.",
                         setup.timestep
@@ -196,30 +188,6 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
 
 /// Bins of g(r) between 0 and the cutoff.
 pub const RDF_BINS: usize = 200;
-
-/// g(r) as CSV: r in σ (and Å for real species), g, running coordination number.
-pub fn rdf_csv(g: &RadialDistribution, units: &crate::physics::UnitSystem) -> String {
-    let real = units.has_real_units();
-    let mut out = String::from(if real {
-        "r [sigma],r [angstrom],g [1],coordination [1]\n"
-    } else {
-        "r [sigma],g [1],coordination [1]\n"
-    });
-    for p in g.points() {
-        if real {
-            out.push_str(&format!(
-                "{:.5},{:.5},{:.6},{:.6}\n",
-                p.r,
-                p.r * units.sigma_angstrom(),
-                p.g,
-                p.coordination
-            ));
-        } else {
-            out.push_str(&format!("{:.5},{:.6},{:.6}\n", p.r, p.g, p.coordination));
-        }
-    }
-    out
-}
 
 /// Mass density of the session's box in g/cm³.
 pub fn mass_density(session: &Session) -> f64 {

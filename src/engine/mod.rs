@@ -1,5 +1,6 @@
 //! The simulation thread and the headless runner: one pipeline (session → watchdog → rewind)
-//! serves both the window and the command line.
+//! serves both the window and the command line. [`protocol`] is the contract between the
+//! window and the engine thread.
 
 pub mod bench;
 pub mod frame;
@@ -12,6 +13,8 @@ pub mod tuning;
 pub mod watchdog;
 
 pub use frame::{Frame, FrameMailbox};
-pub use protocol::{Alarm, Command, Event, Status};
-pub use runner::EngineHandle;
+pub use protocol::{Command, CommandKind, Event, Status};
+pub use runner::{EngineHandle, Refusal};
 pub use session::Session;
+pub use tuning::{TuneError, TuneInput, TuneRequest, TuningReport};
+pub use watchdog::Alarm;

@@ -5,13 +5,14 @@
 //! never waits for drawing: it fills a frame only when the last one was taken.
 
 use super::frame::{Frame, FrameMailbox};
-use super::protocol::{Alarm, Command, Event, Status, TuneUnits, TuningReport, check_tune_request};
+use super::protocol::{Command, CommandKind, Event, Status};
 use super::rewind::RewindBuffer;
 use super::session::Session;
-use super::tuning;
-use crate::io::checkpoint::Checkpoint;
+use super::tuning::{self, TuneError, TuneRequest, TuneUnits, TuningReport};
+use super::watchdog::Alarm;
+use crate::io::checkpoint::{Checkpoint, CheckpointError};
 use crate::io::setup::{Setup, SetupError};
-use crate::physics::{SimulationSpec, SimulationState};
+use crate::physics::{SimulationSpec, SimulationState, SpecError};
 use std::sync::Arc;
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::mpsc::{self, Receiver, RecvTimeoutError, Sender, TryRecvError};
@@ -24,6 +25,42 @@ const SNAPSHOT_EVERY: u64 = 500;
 const BATCH: Duration = Duration::from_millis(15);
 /// How often a status event goes out.
 const STATUS_EVERY: Duration = Duration::from_millis(250);
+
+/// Why the engine refused a command (sent on as [`Event::Rejected`] with its message).
+#[derive(Debug, thiserror::Error)]
+pub enum Refusal {
+    /// The last alarm was a blow-up; `doing` is what was asked ("running again", "stepping",
+    /// "tuning").
+    #[error("the run blew up; rewind or reset before {doing}")]
+    BlewUp { doing: &'static str },
+    /// The setup (or a live change to it) is invalid.
+    #[error(transparent)]
+    Setup(#[from] SetupError),
+    /// A checkpoint could not be written or read.
+    #[error(transparent)]
+    Checkpoint(#[from] CheckpointError),
+    /// The state could not be simulated.
+    #[error(transparent)]
+    Simulation(#[from] SpecError),
+    /// Rewind found no snapshot older than the alarm.
+    #[error("no snapshot older than the alarm is left; reset instead")]
+    NoSnapshot,
+    /// CancelTune with no scan running.
+    #[error("no tuning scan is running")]
+    NoScan,
+    /// Tune while a scan runs.
+    #[error("a tuning scan is already running; wait for its results before starting another")]
+    ScanRunning,
+    /// The tuning request was refused, or the scan failed.
+    #[error(transparent)]
+    Tune(#[from] TuneError),
+    /// The scan's thread could not be started.
+    #[error("could not start the tuning scan: {0}")]
+    TuneThread(std::io::Error),
+    /// The scan's thread ended without an answer.
+    #[error("the tuning scan stopped unexpectedly")]
+    TuneLost,
+}
 
 /// The window's side of the engine: send commands, read events, take frames.
 pub struct EngineHandle {
@@ -109,27 +146,21 @@ struct Engine {
 
 /// A tuning scan on its own thread, working on copies of the state.
 struct TuneJob {
-    result: Receiver<Result<TuningReport, String>>,
+    result: Receiver<Result<TuningReport, TuneError>>,
     /// Set to make the worker stop within 1/200 of a trial (on request, or when the engine ends).
     cancel: Arc<AtomicBool>,
     thread: JoinHandle<()>,
 }
 
 impl TuneJob {
-    fn start(
-        spec: SimulationSpec,
-        state: SimulationState,
-        timesteps: Vec<f64>,
-        cutoffs: Vec<f64>,
-        duration: f64,
-    ) -> std::io::Result<TuneJob> {
+    fn start(spec: SimulationSpec, state: SimulationState, request: TuneRequest) -> std::io::Result<TuneJob> {
         let (tx, rx) = mpsc::channel();
         let cancel = Arc::new(AtomicBool::new(false));
         let stop = cancel.clone();
         let thread = std::thread::Builder::new()
             .name("noblescope-tune".into())
             .spawn(move || {
-                let scan = || tuning::full_scan(spec, state, &timesteps, &cutoffs, duration, &stop);
+                let scan = || tuning::full_scan(spec, state, &request, &stop);
                 // The scan runs on this thread alone, beside the engine: in the shared force pool
                 // each parallel loop of a trial would queue behind the engine's batches of steps.
                 // Results do not depend on the thread count.
@@ -178,20 +209,25 @@ impl Engine {
     fn poll_tune(&mut self) {
         let Some(job) = &self.tune else { return };
         let outcome = match job.result.try_recv() {
-            Ok(r) => r,
+            Ok(r) => r.map_err(Refusal::from),
             Err(TryRecvError::Empty) => return,
-            Err(TryRecvError::Disconnected) => Err("the tuning scan stopped unexpectedly".into()),
+            Err(TryRecvError::Disconnected) => Err(Refusal::TuneLost),
         };
         if let Some(job) = self.tune.take() {
             let _ = job.thread.join();
         }
         match outcome {
             Ok(report) => self.emit(Event::Tuned(report)),
-            Err(reason) => self.emit(Event::Rejected {
-                command: "Tune".into(),
-                reason,
-            }),
+            Err(reason) => self.refuse(CommandKind::Tune, &reason),
         }
+    }
+
+    /// Tells the window that `command` was refused.
+    fn refuse(&self, command: CommandKind, reason: &Refusal) {
+        self.emit(Event::Rejected {
+            command,
+            reason: reason.to_string(),
+        });
     }
 
     /// Stops a running scan (within 1/200 of a trial) without waiting for it.
@@ -224,10 +260,7 @@ impl Engine {
         let mut session = match Session::new(setup) {
             Ok(s) => s,
             Err(e) => {
-                self.emit(Event::Rejected {
-                    command: "start".into(),
-                    reason: e.to_string(),
-                });
+                self.refuse(CommandKind::Start, &Refusal::Setup(e));
                 return;
             }
         };
@@ -320,7 +353,7 @@ impl Engine {
         self.emit(Event::Status(Status {
             running: self.running,
             step: sim.step_count(),
-            time: sim.time(),
+            time_tau: sim.time(),
             atoms,
             steps_per_second: self.steps_per_second,
             atom_steps_per_second: self.steps_per_second * atoms as f64,
@@ -330,58 +363,64 @@ impl Engine {
         self.last_status = Instant::now();
     }
 
+    /// Replaces the simulation with `new` (Apply, Reset, LoadCheckpoint): paused, with a fresh
+    /// rewind buffer, announced with [`Event::Started`].
+    fn replace_session(
+        &mut self,
+        session: &mut Session,
+        new: Result<Session, Refusal>,
+    ) -> Result<(), Refusal> {
+        *session = new?;
+        self.running = false;
+        self.start(session);
+        Ok(())
+    }
+
+    /// Refuses `doing` after a blow-up.
+    fn check_not_blown_up(&self, doing: &'static str) -> Result<(), Refusal> {
+        if matches!(self.last_alarm, Some(Alarm::NonFinite { .. })) {
+            Err(Refusal::BlewUp { doing })
+        } else {
+            Ok(())
+        }
+    }
+
     /// Handles one command; returns false to stop the thread.
     fn handle(&mut self, c: Command, session: &mut Session) -> bool {
-        let name = format!("{c:?}")
-            .split(['(', ' ', '{'])
-            .next()
-            .unwrap_or("command")
-            .to_string();
-        let result: Result<(), String> = match c {
+        let kind = c.kind();
+        let result: Result<(), Refusal> = match c {
             Command::Shutdown => return false,
-            Command::Run => {
-                if matches!(self.last_alarm, Some(Alarm::NonFinite { .. })) {
-                    Err("the run blew up; rewind or reset before running again".into())
-                } else {
-                    self.running = true;
-                    self.rate_since = Instant::now();
-                    self.rate_steps = 0;
-                    Ok(())
-                }
-            }
+            Command::Run => self.check_not_blown_up("running again").map(|()| {
+                self.running = true;
+                self.rate_since = Instant::now();
+                self.rate_steps = 0;
+            }),
             Command::Pause => {
                 self.running = false;
                 Ok(())
             }
             Command::StepOnce => {
                 self.running = false;
-                if matches!(self.last_alarm, Some(Alarm::NonFinite { .. })) {
-                    Err("the run blew up; rewind or reset before stepping".into())
-                } else {
+                self.check_not_blown_up("stepping").map(|()| {
                     self.advance(session);
                     self.publish_frame(session, true);
-                    Ok(())
-                }
+                })
             }
-            Command::Apply(setup) => match Session::new(*setup) {
-                Ok(s) => {
-                    *session = s;
-                    self.running = false;
-                    self.start(session);
-                    Ok(())
-                }
-                Err(e) => Err(e.to_string()),
-            },
-            Command::Reset => match Session::new(session.setup().clone()) {
-                Ok(s) => {
-                    *session = s;
-                    self.running = false;
-                    self.start(session);
-                    Ok(())
-                }
-                Err(e) => Err(e.to_string()),
-            },
-            Command::SetTimestep(dt) => session.set_timestep(dt).map_err(|e| e.to_string()),
+            Command::Apply(setup) => {
+                let new = Session::new(*setup).map_err(Refusal::from);
+                self.replace_session(session, new)
+            }
+            Command::Reset => {
+                let new = Session::new(session.setup().clone()).map_err(Refusal::from);
+                self.replace_session(session, new)
+            }
+            Command::LoadCheckpoint(path) => {
+                let new = Checkpoint::load(&path)
+                    .map_err(Refusal::from)
+                    .and_then(|c| Session::from_checkpoint(c).map_err(Refusal::from));
+                self.replace_session(session, new)
+            }
+            Command::SetTimestep(dt) => session.set_timestep(dt).map_err(Refusal::from),
             Command::SetInteraction {
                 cutoff,
                 skin,
@@ -389,106 +428,73 @@ impl Engine {
                 tail_correction,
             } => session
                 .set_interaction(cutoff, skin, potential, tail_correction)
-                .map_err(|e| e.to_string()),
+                .map_err(Refusal::from),
             Command::SetThermostat {
                 ensemble,
                 temperature,
             } => session
                 .set_thermostat(ensemble, temperature)
-                .map_err(|e| e.to_string()),
-            Command::SaveCheckpoint(path) => match session.checkpoint().save(&path) {
-                Ok(()) => {
+                .map_err(Refusal::from),
+            Command::SaveCheckpoint(path) => {
+                session.checkpoint().save(&path).map_err(Refusal::from).map(|()| {
                     self.emit(Event::Saved(path));
-                    Ok(())
-                }
-                Err(e) => Err(e.to_string()),
-            },
-            Command::LoadCheckpoint(path) => match Checkpoint::load(&path)
-                .map_err(|e| e.to_string())
-                .and_then(|c| Session::from_checkpoint(c).map_err(|e| e.to_string()))
-            {
-                Ok(s) => {
-                    *session = s;
-                    self.running = false;
-                    self.start(session);
-                    Ok(())
-                }
-                Err(e) => Err(e),
-            },
-            Command::Rewind => {
-                let before = self
-                    .last_alarm
-                    .as_ref()
-                    .map(|a| a.step())
-                    .unwrap_or(session.simulation().step_count() + 1);
-                match self.rewind.rewind_before(before) {
-                    Some(state) => {
-                        let spec = session.simulation().spec().clone();
-                        match crate::physics::Simulation::from_state(spec, state) {
-                            Ok(sim) => {
-                                *session.simulation_mut() = sim;
-                                self.running = false;
-                                self.last_alarm = None;
-                                self.emit(Event::Rewound {
-                                    step: session.simulation().step_count(),
-                                    time: session.simulation().time(),
-                                });
-                                self.emit(Event::Sample(session.observe()));
-                                self.publish_frame(session, true);
-                                Ok(())
-                            }
-                            Err(e) => Err(e.to_string()),
-                        }
-                    }
-                    None => Err("no snapshot older than the alarm is left; reset instead".into()),
-                }
+                })
             }
+            Command::Rewind => self.rewind(session),
             Command::CancelTune => {
                 if self.tune.is_some() {
                     self.cancel_tune();
                     self.emit(Event::TuneCancelled);
                     Ok(())
                 } else {
-                    Err("no tuning scan is running".into())
+                    Err(Refusal::NoScan)
                 }
             }
-            Command::Tune {
-                timesteps,
-                cutoffs,
-                duration,
-            } => {
-                let sim = session.simulation();
-                if self.tune.is_some() {
-                    Err(
-                        "a tuning scan is already running; wait for its results before starting another"
-                            .into(),
-                    )
-                } else if matches!(self.last_alarm, Some(Alarm::NonFinite { .. })) {
-                    Err("the run blew up; rewind or reset before tuning".into())
-                } else {
-                    check_tune_request(sim.spec(), &timesteps, &cutoffs, duration, TuneUnits::REDUCED)
-                        .and_then(|()| {
-                            let job =
-                                TuneJob::start(sim.spec().clone(), sim.state(), timesteps, cutoffs, duration)
-                                    .map_err(|e| format!("could not start the tuning scan: {e}"))?;
-                            self.tune = Some(job);
-                            Ok(())
-                        })
-                }
-            }
+            Command::Tune(request) => self.start_tune(session, request),
         };
         match result {
             Ok(()) => {
-                if matches!(name.as_str(), "SetTimestep" | "SetInteraction" | "SetThermostat") {
+                if kind.is_live_change() {
                     self.emit(Event::SetupChanged(Box::new(session.setup().clone())));
                 }
             }
-            Err(reason) => self.emit(Event::Rejected {
-                command: name,
-                reason,
-            }),
+            Err(reason) => self.refuse(kind, &reason),
         }
         self.send_status(session);
         true
+    }
+
+    /// Goes back to the newest snapshot before the last alarm (or before the present step).
+    fn rewind(&mut self, session: &mut Session) -> Result<(), Refusal> {
+        let before = self
+            .last_alarm
+            .as_ref()
+            .map(|a| a.step())
+            .unwrap_or(session.simulation().step_count() + 1);
+        let state = self.rewind.rewind_before(before).ok_or(Refusal::NoSnapshot)?;
+        let spec = session.simulation().spec().clone();
+        *session.simulation_mut() = crate::physics::Simulation::from_state(spec, state)?;
+        self.running = false;
+        self.last_alarm = None;
+        self.emit(Event::Rewound {
+            step: session.simulation().step_count(),
+            time_tau: session.simulation().time(),
+        });
+        self.emit(Event::Sample(session.observe()));
+        self.publish_frame(session, true);
+        Ok(())
+    }
+
+    /// Checks `request` and starts its scan beside the loop.
+    fn start_tune(&mut self, session: &Session, request: TuneRequest) -> Result<(), Refusal> {
+        if self.tune.is_some() {
+            return Err(Refusal::ScanRunning);
+        }
+        self.check_not_blown_up("tuning")?;
+        let sim = session.simulation();
+        request.check(sim.spec(), TuneUnits::REDUCED)?;
+        let job = TuneJob::start(sim.spec().clone(), sim.state(), request).map_err(Refusal::TuneThread)?;
+        self.tune = Some(job);
+        Ok(())
     }
 }

@@ -1,7 +1,7 @@
 //! A session: one simulation with its setup, sampling schedule and watchdog. The engine thread
 //! and the headless runner both drive a session, so they step and sample identically.
 
-use super::protocol::Alarm;
+use super::watchdog::Alarm;
 use super::watchdog::Watchdog;
 use crate::io::checkpoint::Checkpoint;
 use crate::io::setup::{Duration, Ensemble, Length, Setup, SetupError, Temperature};

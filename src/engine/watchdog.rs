@@ -1,7 +1,47 @@
 //! The blow-up watchdog: catches non-finite energies, overlapping atoms and energy drift.
 
-use super::protocol::Alarm;
 use crate::physics::{Blowup, Observables, Simulation};
+
+/// Why the watchdog stopped a run.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Alarm {
+    /// Energy or forces became non-finite.
+    NonFinite { step: u64, atoms: Vec<usize> },
+    /// Some atom feels a force beyond the limit: atoms overlap, the run is about to explode.
+    HugeForce {
+        step: u64,
+        force: f64,
+        atoms: Vec<usize>,
+    },
+    /// The conserved energy drifted beyond the limit since the start.
+    Drift { step: u64, drift: f64, limit: f64 },
+}
+
+impl Alarm {
+    /// Step at which the alarm fired.
+    pub fn step(&self) -> u64 {
+        match *self {
+            Alarm::NonFinite { step, .. } | Alarm::HugeForce { step, .. } | Alarm::Drift { step, .. } => step,
+        }
+    }
+
+    /// One sentence for people.
+    pub fn describe(&self) -> String {
+        match self {
+            Alarm::NonFinite { step, atoms } => format!(
+                "step {step}: energy is no longer finite (atoms {atoms:?}); the run blew up. Rewind and lower the timestep."
+            ),
+            Alarm::HugeForce { step, force, atoms } => format!(
+                "step {step}: force {force:.3e} ε/σ on atoms {atoms:?}: atoms overlap. Rewind and lower the timestep."
+            ),
+            Alarm::Drift { step, drift, limit } => format!(
+                "step {step}: conserved energy drifted by {:.3}% (limit {:.3}%). Lower the timestep or use ShiftedForce.",
+                drift * 100.0,
+                limit * 100.0
+            ),
+        }
+    }
+}
 
 /// Limits the watchdog enforces.
 #[derive(Clone, Copy, Debug, PartialEq)]

@@ -2,6 +2,8 @@
 
 pub mod checkpoint;
 pub mod energy_log;
+pub mod numbers;
+pub mod rdf_csv;
 pub mod run_folder;
 pub mod setup;
 pub mod summary;

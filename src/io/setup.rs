@@ -160,6 +160,16 @@ fn default_sample_every() -> u64 {
 
 /// Largest atom count a setup may ask for.
 pub const MAX_ATOMS: u64 = 1_000_000;
+/// Reduced density ρσ³ a setup may ask for: (smallest, largest).
+pub const DENSITY_RANGE_REDUCED: (f64, f64) = (1e-6, 1.5);
+/// Reduced temperature kT/ε a setup may ask for: (lowest, highest).
+pub const TEMPERATURE_RANGE_REDUCED: (f64, f64) = (1e-3, 100.0);
+/// Timestep a setup (and a tuning scan) may ask for, τ: (smallest, largest).
+pub const TIMESTEP_RANGE_TAU: (f64, f64) = (1e-5, 0.05);
+/// Cutoff a setup (and a tuning scan) may ask for before the box limit, σ: (shortest, longest).
+pub const CUTOFF_RANGE_SIGMA: (f64, f64) = (1.0, 10.0);
+/// Neighbour-list skin a setup may ask for, σ: (smallest, largest).
+pub const SKIN_RANGE_SIGMA: (f64, f64) = (0.0, 2.0);
 /// Largest number of species in one mixture.
 pub const MAX_SPECIES: usize = 6;
 /// Bytes per atom the engine needs, with room for the neighbour list and a rewind snapshot.
@@ -375,8 +385,8 @@ impl Setup {
             "density",
             format!("{:?} = {density:.5} reduced", self.density),
             density,
-            1e-6,
-            1.5,
+            DENSITY_RANGE_REDUCED.0,
+            DENSITY_RANGE_REDUCED.1,
             "reduced density ρσ³ from 1e-6 to 1.5",
         )?;
         let temperature = self.reduced_temperature("temperature", self.temperature)?;
@@ -384,8 +394,8 @@ impl Setup {
             "temperature",
             format!("{:?} = {temperature:.5} reduced", self.temperature),
             temperature,
-            1e-3,
-            100.0,
+            TEMPERATURE_RANGE_REDUCED.0,
+            TEMPERATURE_RANGE_REDUCED.1,
             "reduced temperature kT/ε from 0.001 to 100",
         )?;
         let dt = self.reduced_duration("timestep", self.timestep)?;
@@ -393,8 +403,8 @@ impl Setup {
             "timestep",
             format!("{:?} = {dt:.6} τ", self.timestep),
             dt,
-            1e-5,
-            0.05,
+            TIMESTEP_RANGE_TAU.0,
+            TIMESTEP_RANGE_TAU.1,
             "1e-5 τ to 0.05 τ",
         )?;
         let cutoff = self.reduced_length("cutoff", self.cutoff)?;
@@ -402,8 +412,8 @@ impl Setup {
             "cutoff",
             format!("{:?} = {cutoff:.4} σ", self.cutoff),
             cutoff,
-            1.0,
-            10.0,
+            CUTOFF_RANGE_SIGMA.0,
+            CUTOFF_RANGE_SIGMA.1,
             "1 σ to 10 σ",
         )?;
         let skin = self.reduced_length("skin", self.skin)?;
@@ -411,8 +421,8 @@ impl Setup {
             "skin",
             format!("{:?} = {skin:.4} σ", self.skin),
             skin,
-            0.0,
-            2.0,
+            SKIN_RANGE_SIGMA.0,
+            SKIN_RANGE_SIGMA.1,
             "0 σ to 2 σ",
         )?;
         let thermostat = match self.ensemble {

@@ -315,7 +315,7 @@ impl NoblescopeApp {
                     self.status.message = Some(("Live change applied.".into(), false));
                 }
                 Event::Rejected { command, reason } => {
-                    if command == "Tune" {
+                    if command == crate::engine::CommandKind::Tune {
                         self.tuning.rejected(reason.clone());
                     }
                     self.status.message = Some((format!("{command} refused: {reason}"), true));
@@ -341,8 +341,8 @@ impl NoblescopeApp {
                     self.status.message = Some(("Tuning scan stopped.".into(), false));
                 }
                 Event::Alarm(a) => self.status.alarm = Some(a),
-                Event::Rewound { step, time } => {
-                    self.plots.rewind_to(time);
+                Event::Rewound { step, time_tau } => {
+                    self.plots.rewind_to(time_tau);
                     self.status.alarm = None;
                     self.status.message = Some((
                         format!("Rewound to step {step}; lower the timestep before running on."),
@@ -408,7 +408,7 @@ impl NoblescopeApp {
             }
             TuningAction::Cancel => self.send(Command::CancelTune),
             TuningAction::UseTimestep(dt) => {
-                self.form.timestep = super::unit_field::UnitField::from_value(dt);
+                self.form.timestep.show_value(&self.running, dt);
                 self.form_open = true;
                 self.status.message = Some(("Recommended timestep put into the setup form: press Change live or Apply and restart to use it.".into(), false));
             }

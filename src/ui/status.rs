@@ -34,9 +34,9 @@ impl StatusLine {
     pub fn text(&self, units: UnitSystem) -> String {
         let s = &self.status;
         let time = if units.has_real_units() {
-            format!("{:.3} ps ({:.2} τ)", s.time * units.tau_ps(), s.time)
+            format!("{:.3} ps ({:.2} τ)", s.time_tau * units.tau_ps(), s.time_tau)
         } else {
-            format!("{:.3} τ", s.time)
+            format!("{:.3} τ", s.time_tau)
         };
         format!(
             "{} · step {} · t = {} · {} steps/s · {} atom-steps/s · {} neighbour-list rebuilds",
@@ -102,7 +102,7 @@ mod tests {
             status: Status {
                 running: true,
                 step: 1200,
-                time: 6.0,
+                time_tau: 6.0,
                 atoms: 4000,
                 steps_per_second: 250.0,
                 atom_steps_per_second: 1.0e6,

@@ -7,17 +7,32 @@ use super::palette;
 use super::plots::nice_grid;
 use super::unit_field::{LengthUnit, Quantity, format_number};
 use crate::engine::Command;
-use crate::engine::protocol::{TUNE_MAX_VALUES, TuneUnits, TuningReport, check_tune_request};
-use crate::engine::tuning::FLUCTUATION_LIMIT;
+use crate::engine::tuning::{
+    FLUCTUATION_LIMIT, TUNE_MAX_VALUES, TUNE_STEPS_APART, TuneError, TuneInput, TuneRequest, TuningReport,
+};
+use crate::io::numbers::significant;
 use crate::io::setup::{Duration, Length, Setup};
 use crate::physics::UnitSystem;
 use egui_plot::{Corner, HLine, Legend, Line, MarkerShape, Plot, PlotPoints, Points, VLine};
 use std::time::Instant;
 
-/// Cutoffs offered by default (σ), as far as the box allows.
-const DEFAULT_CUTOFFS: [f64; 6] = [2.0, 2.5, 3.0, 3.5, 4.0, 5.0];
-/// Default timesteps as multiples of the running one.
-const DEFAULT_TIMESTEP_FACTORS: [f64; 5] = [0.5, 1.0, 1.5, 2.0, 3.0];
+/// Why the typed lists make no request: a text that is not a list of numbers, or a request
+/// the builder refused.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+pub enum TuningInputError {
+    /// A list has no entries.
+    #[error("{field}: the list is empty; allowed: 1 to {TUNE_MAX_VALUES} numbers separated by commas")]
+    EmptyList { field: &'static str },
+    /// A list entry is not a number.
+    #[error("{field}: \"{text}\" is not a number; allowed: numbers separated by commas, such as 5, 10, 15")]
+    NotANumber { field: &'static str, text: String },
+    /// The trial length is not a number.
+    #[error("duration: \"{text}\" is not a number; allowed: a number of {unit} such as 10")]
+    DurationNotANumber { text: String, unit: &'static str },
+    /// The request was refused.
+    #[error(transparent)]
+    Request(#[from] TuneError),
+}
 
 /// What the user asked the panel to do this frame.
 #[derive(Clone, Debug, PartialEq)]
@@ -78,11 +93,27 @@ impl Shown {
             (1.0, "ε/σ³")
         }
     }
-    fn tune_units(&self, length: LengthUnit) -> TuneUnits {
-        TuneUnits {
-            timestep: self.timestep(),
-            duration: self.duration(),
-            length: self.length(length),
+    /// A typed timestep in the panel's timestep unit.
+    fn typed_timestep(&self, v: f64) -> Duration {
+        if self.real {
+            Duration::Femtoseconds(v)
+        } else {
+            Duration::Reduced(v)
+        }
+    }
+    /// A typed trial length in the panel's duration unit.
+    fn typed_duration(&self, v: f64) -> Duration {
+        if self.real {
+            Duration::Picoseconds(v)
+        } else {
+            Duration::Reduced(v)
+        }
+    }
+    /// A typed cutoff in `unit`.
+    fn typed_length(&self, unit: LengthUnit, v: f64) -> Length {
+        match unit {
+            LengthUnit::Angstrom if self.real => Length::Angstrom(v),
+            _ => Length::Sigma(v),
         }
     }
 }
@@ -116,31 +147,25 @@ pub struct TuningPanel {
 }
 
 /// Parses a comma- or space-separated list of numbers; errors name the field.
-fn parse_list(field: &str, text: &str) -> Result<Vec<f64>, String> {
+fn parse_list(field: &'static str, text: &str) -> Result<Vec<f64>, TuningInputError> {
     let items: Vec<&str> = text
         .split([',', ';', ' '])
         .map(str::trim)
         .filter(|t| !t.is_empty())
         .collect();
     if items.is_empty() {
-        return Err(format!(
-            "{field}: the list is empty; allowed: 1 to {TUNE_MAX_VALUES} numbers separated by commas"
-        ));
+        return Err(TuningInputError::EmptyList { field });
     }
     items
         .iter()
         .map(|t| match t.parse::<f64>() {
             Ok(v) if v.is_finite() => Ok(v),
-            _ => Err(format!(
-                "{field}: \"{t}\" is not a number; allowed: numbers separated by commas, such as 5, 10, 15"
-            )),
+            _ => Err(TuningInputError::NotANumber {
+                field,
+                text: t.to_string(),
+            }),
         })
         .collect()
-}
-
-/// `v` rounded to three significant digits (for the reduced equivalents line).
-fn sig3(v: f64) -> String {
-    format!("{}", format!("{v:.2e}").parse::<f64>().unwrap_or(v))
 }
 
 fn join(values: impl IntoIterator<Item = f64>) -> String {
@@ -178,33 +203,33 @@ impl TuningPanel {
         p
     }
 
-    /// Refills the three lists with the defaults for `setup` (the last results stay).
+    /// Refills the three lists with the defaults for `setup` ([`TuneInput::defaults`], shown
+    /// in the panel's units; the last results stay).
     pub fn fill_defaults(&mut self, setup: &Setup) {
         self.units = setup.units();
         let shown = Shown::of(self.units);
+        let defaults = TuneInput::defaults(setup);
         let (tf, _) = shown.timestep();
-        let dt = setup
-            .reduced_duration("timestep", setup.timestep)
-            .unwrap_or(0.005);
-        self.timesteps = join(DEFAULT_TIMESTEP_FACTORS.iter().map(|f| f * dt * tf));
         let (lf, _) = shown.length(self.cutoff_unit);
-        let fits: Vec<f64> = match setup.resolve() {
-            Ok(spec) => DEFAULT_CUTOFFS
-                .into_iter()
-                .filter(|rc| rc + spec.skin <= 0.5 * spec.box_length())
-                .collect(),
-            Err(_) => vec![2.5],
-        };
-        self.cutoffs = join(
-            if fits.is_empty() {
-                vec![setup.reduced_length("cutoff", setup.cutoff).unwrap_or(2.5)]
-            } else {
-                fits
-            }
-            .into_iter()
-            .map(|rc| rc * lf),
+        let (df, _) = shown.duration();
+        self.timesteps = join(
+            defaults
+                .timesteps
+                .iter()
+                .map(|&d| setup.reduced_duration("timestep", d).unwrap_or(0.005) * tf),
         );
-        self.duration = if shown.real { "10".into() } else { "5".into() };
+        self.cutoffs = join(
+            defaults
+                .cutoffs
+                .iter()
+                .map(|&l| setup.reduced_length("cutoff", l).unwrap_or(2.5) * lf),
+        );
+        self.duration = format_number(
+            setup
+                .reduced_duration("duration", defaults.duration)
+                .unwrap_or(crate::engine::tuning::DEFAULT_TRIAL_TAU)
+                * df,
+        );
         self.error = None;
     }
 
@@ -223,13 +248,13 @@ impl TuningPanel {
         self.error.as_deref()
     }
 
-    /// Marks `c` as sent (the panel shows "scanning…") and hands it back as an action.
-    pub fn start_requested(&mut self, c: Command) -> TuningAction {
+    /// Marks `request` as sent (the panel shows "scanning…") and hands it back as an action.
+    pub fn start_requested(&mut self, request: TuneRequest) -> TuningAction {
         self.scanning = Some(Instant::now());
         self.scan_run = self.runs;
         self.error = None;
         self.stopped = false;
-        TuningAction::Start(c)
+        TuningAction::Start(Command::Tune(request))
     }
 
     /// The engine answered with results.
@@ -253,9 +278,9 @@ impl TuningPanel {
     }
 
     /// The engine refused the scan (or the scan failed).
-    pub fn rejected(&mut self, reason: String) {
+    pub fn rejected(&mut self, reason: impl std::fmt::Display) {
         self.scanning = None;
-        self.error = Some(reason);
+        self.error = Some(reason.to_string());
     }
 
     /// A new run started on `setup`: earlier results are marked as such, and lists in other
@@ -270,45 +295,39 @@ impl TuningPanel {
         }
     }
 
-    /// The command the typed lists make for `running`, or a message naming the field, the
-    /// value and the allowed range.
-    pub fn request(&self, running: &Setup) -> Result<Command, String> {
+    /// The lists as typed, with their units: timesteps in fs (real species) or τ, cutoffs in
+    /// `cutoff_unit`, the trial in ps (real species) or τ.
+    pub fn input(&self, running: &Setup) -> Result<TuneInput, TuningInputError> {
         let shown = Shown::of(running.units());
-        let spec = running
-            .resolve()
-            .map_err(|e| format!("the running setup is invalid: {e}"))?;
-        let (tf, _) = shown.timestep();
-        let (df, du) = shown.duration();
-        let (lf, _) = shown.length(self.cutoff_unit);
-        let timesteps: Vec<f64> = parse_list("timesteps", &self.timesteps)?
+        let timesteps = parse_list("timesteps", &self.timesteps)?
             .into_iter()
-            .map(|v| v / tf)
+            .map(|v| shown.typed_timestep(v))
             .collect();
-        let cutoffs: Vec<f64> = parse_list("cutoffs", &self.cutoffs)?
+        let cutoffs = parse_list("cutoffs", &self.cutoffs)?
             .into_iter()
-            .map(|v| v / lf)
+            .map(|v| shown.typed_length(self.cutoff_unit, v))
             .collect();
         let d = self.duration.trim();
         let duration = match d.parse::<f64>() {
-            Ok(v) if v.is_finite() => v / df,
+            Ok(v) if v.is_finite() => shown.typed_duration(v),
             _ => {
-                return Err(format!(
-                    "duration: \"{d}\" is not a number; allowed: a number of {du} such as 10"
-                ));
+                return Err(TuningInputError::DurationNotANumber {
+                    text: d.to_string(),
+                    unit: shown.duration().1,
+                });
             }
         };
-        check_tune_request(
-            &spec,
-            &timesteps,
-            &cutoffs,
-            duration,
-            shown.tune_units(self.cutoff_unit),
-        )?;
-        Ok(Command::Tune {
+        Ok(TuneInput {
             timesteps,
             cutoffs,
             duration,
         })
+    }
+
+    /// The request the typed lists make for `running` ([`TuneRequest::from_setup`]), or why
+    /// not, naming the field, the value and the allowed range.
+    pub fn request(&self, running: &Setup) -> Result<TuneRequest, TuningInputError> {
+        Ok(TuneRequest::from_setup(running, &self.input(running)?)?)
     }
 
     /// Draws the panel; `running` is the setup the engine runs.
@@ -368,12 +387,16 @@ impl TuningPanel {
         let request = self.request(running);
         match &request {
             Err(e) => {
-                ui.colored_label(palette::ERROR_TEXT, e);
+                ui.colored_label(palette::ERROR_TEXT, e.to_string());
             }
-            Ok(Command::Tune { timesteps, .. }) if shown.real => {
+            Ok(r) if shown.real => {
                 ui.weak(format!(
                     "= {} τ",
-                    timesteps.iter().map(|&v| sig3(v)).collect::<Vec<_>>().join(", ")
+                    r.timesteps_tau
+                        .iter()
+                        .map(|&v| significant(v, 3))
+                        .collect::<Vec<_>>()
+                        .join(", ")
                 ));
             }
             Ok(_) => {}
@@ -389,9 +412,9 @@ impl TuningPanel {
                     "fix the lists first"
                 });
             if start.clicked()
-                && let Ok(c) = request.clone()
+                && let Ok(r) = request.clone()
             {
-                action = Some(self.start_requested(c));
+                action = Some(self.start_requested(r));
             }
             if ui
                 .add_enabled(self.scanning.is_none(), egui::Button::new("Default lists"))
@@ -451,7 +474,7 @@ impl TuningPanel {
         ui.heading("Timestep scan");
         ui.weak(format!(
             "constant energy for {} {du} from step {}, per timestep",
-            format_number(report.duration * df),
+            format_number(report.duration_tau * df),
             report.from_step
         ));
         match report.recommended {
@@ -469,7 +492,7 @@ impl TuningPanel {
                     .timesteps
                     .iter()
                     .filter(|r| !r.blew_up)
-                    .map(|r| r.timestep)
+                    .map(|r| r.timestep_tau)
                     .fold(f64::MIN, f64::max)
                     == dt
                 {
@@ -493,20 +516,20 @@ impl TuningPanel {
             .timesteps
             .iter()
             .filter(|r| !r.blew_up)
-            .map(|r| [r.timestep * tf, r.fluctuation_ratio])
+            .map(|r| [r.timestep_tau * tf, r.fluctuation_ratio])
             .collect();
         let drift: Vec<[f64; 2]> = report
             .timesteps
             .iter()
             .filter(|r| !r.blew_up)
-            .map(|r| [r.timestep * tf, r.relative_drift.abs()])
+            .map(|r| [r.timestep_tau * tf, r.relative_drift.abs()])
             .collect();
         let top = ok.iter().map(|p| p[1]).fold(FLUCTUATION_LIMIT, f64::max) * 1.15;
         let blown: Vec<[f64; 2]> = report
             .timesteps
             .iter()
             .filter(|r| r.blew_up)
-            .map(|r| [r.timestep * tf, top])
+            .map(|r| [r.timestep_tau * tf, top])
             .collect();
         let drift_top = drift.iter().map(|p| p[1]).fold(0.0, f64::max) * 1.15;
         let blown_drift: Vec<[f64; 2]> = blown.iter().map(|p| [p[0], drift_top.max(1e-12)]).collect();
@@ -514,8 +537,8 @@ impl TuningPanel {
         let rec_point: Vec<[f64; 2]> = report
             .timesteps
             .iter()
-            .filter(|r| Some(r.timestep) == report.recommended)
-            .map(|r| [r.timestep * tf, r.fluctuation_ratio])
+            .filter(|r| Some(r.timestep_tau) == report.recommended)
+            .map(|r| [r.timestep_tau * tf, r.fluctuation_ratio])
             .collect();
         let w = ((ui.available_width() - 12.0) / 2.0).max(160.0);
         ui.horizontal(|ui| {
@@ -621,7 +644,7 @@ impl TuningPanel {
                 }
                 ui.end_row();
                 for r in &report.timesteps {
-                    let recommended = Some(r.timestep) == report.recommended;
+                    let recommended = Some(r.timestep_tau) == report.recommended;
                     let cell = |ui: &mut egui::Ui, t: String| {
                         if recommended {
                             ui.label(egui::RichText::new(t).color(palette::TARGET));
@@ -629,7 +652,7 @@ impl TuningPanel {
                             ui.label(t);
                         }
                     };
-                    cell(ui, format_number(r.timestep * tf));
+                    cell(ui, format_number(r.timestep_tau * tf));
                     cell(ui, r.steps.to_string());
                     if r.blew_up {
                         ui.label("–");
@@ -659,9 +682,13 @@ impl TuningPanel {
         let (ef, eu) = shown.energy();
         let (pf, pu) = shown.pressure();
         ui.heading("Cutoff scan");
-        ui.weak(format!("{:?}, averaged over {} configurations {} steps apart; full estimate: unshifted pair terms inside the cutoff plus analytic tail corrections", report.potential, report.configurations, 200));
+        ui.weak(format!("{:?}, averaged over {} configurations {} steps apart; full estimate: unshifted pair terms inside the cutoff plus analytic tail corrections", report.potential, report.configurations, TUNE_STEPS_APART));
         let series = |f: &dyn Fn(&crate::engine::tuning::CutoffRow) -> f64| -> Vec<[f64; 2]> {
-            report.cutoffs.iter().map(|r| [r.cutoff * lf, f(r)]).collect()
+            report
+                .cutoffs
+                .iter()
+                .map(|r| [r.cutoff_sigma * lf, f(r)])
+                .collect()
         };
         let u_mode = series(&|r| r.potential * ef);
         let u_full = series(&|r| r.potential_full_estimate * ef);
@@ -710,7 +737,7 @@ impl TuningPanel {
                 }
                 ui.end_row();
                 for r in &report.cutoffs {
-                    ui.label(format_number(r.cutoff * lf));
+                    ui.label(format_number(r.cutoff_sigma * lf));
                     ui.label(format!("{:.4}", r.potential * ef));
                     ui.label(format!("{:.4}", r.potential_full_estimate * ef));
                     ui.label(format!("{:.4}", r.pressure * pf));
@@ -775,18 +802,14 @@ mod tests {
         assert_eq!(p.timesteps, "0.0025, 0.005, 0.0075, 0.01, 0.015");
         // 256 atoms at 0.8442: half box 3.36 σ, skin 0.3 σ: 2, 2.5 and 3 fit.
         assert_eq!(p.cutoffs, "2, 2.5, 3");
-        match p.request(&s).unwrap() {
-            Command::Tune {
-                timesteps,
-                cutoffs,
-                duration,
-            } => {
-                assert_eq!(timesteps.len(), 5);
-                assert_eq!(cutoffs, vec![2.0, 2.5, 3.0]);
-                assert_eq!(duration, 5.0);
-            }
-            c => panic!("not a tune command: {c:?}"),
-        }
+        let TuneRequest {
+            timesteps_tau,
+            cutoffs_sigma,
+            duration_tau,
+        } = p.request(&s).unwrap();
+        assert_eq!(timesteps_tau.len(), 5);
+        assert_eq!(cutoffs_sigma, vec![2.0, 2.5, 3.0]);
+        assert_eq!(duration_tau, 5.0);
     }
 
     #[test]
@@ -796,13 +819,11 @@ mod tests {
         let mut p = TuningPanel::for_setup(&s);
         assert_eq!(p.cutoff_unit, LengthUnit::Angstrom);
         assert!(p.timesteps.starts_with("5, 10, 15"), "{}", p.timesteps);
-        let Command::Tune { timesteps, .. } = p.request(&s).unwrap() else {
-            panic!()
-        };
+        let timesteps = p.request(&s).unwrap().timesteps_tau;
         let tau_fs = s.units().tau_fs();
         assert!((timesteps[1] - 10.0 / tau_fs).abs() < 1e-12);
         p.timesteps = "10, 500".into();
-        let e = p.request(&s).unwrap_err();
+        let e = p.request(&s).unwrap_err().to_string();
         assert!(
             e.starts_with("timesteps: 500 fs is out of range; allowed:") && e.contains(" fs to "),
             "{e}"
@@ -811,11 +832,12 @@ mod tests {
         assert!(
             p.request(&s)
                 .unwrap_err()
+                .to_string()
                 .contains("timesteps: \"ten\" is not a number")
         );
         p.timesteps = "10".into();
         p.cutoffs = "0.5".into();
-        let e = p.request(&s).unwrap_err();
+        let e = p.request(&s).unwrap_err().to_string();
         assert!(
             e.starts_with("cutoffs: 0.5 Å is out of range; allowed:") && e.contains("Å"),
             "{e}"
@@ -825,6 +847,7 @@ mod tests {
         assert!(
             p.request(&s)
                 .unwrap_err()
+                .to_string()
                 .starts_with("duration: 0 ps is out of range")
         );
     }
@@ -834,7 +857,7 @@ mod tests {
             from_step: step,
             reference: crate::physics::Species::ReducedLJ,
             potential: crate::physics::PotentialMode::TruncatedShifted,
-            duration: 1.0,
+            duration_tau: 1.0,
             configurations: 1,
             timesteps: Vec::new(),
             cutoffs: Vec::new(),

@@ -3,6 +3,9 @@
 
 use crate::io::setup::{Density, Duration, Length, Rate, Setup, SetupError, Temperature};
 
+/// The number formatter of fields and tables (kept here for the form's callers).
+pub use crate::io::numbers::format_number;
+
 /// A kind of quantity the form edits, with its units.
 pub trait Quantity: Copy + std::fmt::Debug + PartialEq + 'static {
     /// The setup-file value (e.g. [`Density`]).
@@ -228,27 +231,6 @@ impl Quantity for RateUnit {
     }
 }
 
-/// Formats a number with about five significant digits, without trailing noise.
-pub fn format_number(v: f64) -> String {
-    if v == 0.0 || !v.is_finite() {
-        return format!("{v}");
-    }
-    // Round to six significant digits first, so 0.0049999999 shows as 0.005.
-    let v: f64 = format!("{v:.5e}").parse().unwrap_or(v);
-    let a = v.abs();
-    if (1e-3..1e6).contains(&a) {
-        let digits = (5 - a.log10().floor() as i32).clamp(0, 9) as usize;
-        let s = format!("{v:.digits$}");
-        if s.contains('.') {
-            s.trim_end_matches('0').trim_end_matches('.').to_string()
-        } else {
-            s
-        }
-    } else {
-        format!("{v:.5e}")
-    }
-}
-
 /// The text and unit of one unit-bearing field.
 #[derive(Clone, Debug, PartialEq)]
 pub struct UnitField<Q: Quantity> {
@@ -270,6 +252,22 @@ impl<Q: Quantity> UnitField<Q> {
             exact: Some((x, text.clone())),
             text,
             unit,
+        }
+    }
+
+    /// Shows `v` in the field's present unit, converted through reduced units of `setup` (as
+    /// is, in its own unit, if it is in that unit already or cannot be converted).
+    pub fn show_value(&mut self, setup: &Setup, v: Q::Value) {
+        let unit = self.unit;
+        *self = Self::from_value(v);
+        if self.unit != unit
+            && let (Ok(r), Ok(per)) = (Q::reduce(setup, v), Q::reduce(setup, unit.make(1.0)))
+            && per != 0.0
+        {
+            let x = r / per;
+            self.text = format_number(x);
+            self.exact = Some((x, self.text.clone()));
+            self.unit = unit;
         }
     }
 

@@ -1,16 +1,19 @@
-//! Timestep and cutoff tuning: short scans from one equilibrated state that show how well each
-//! timestep conserves energy and how far each cutoff is from converged energy and pressure.
+//! The scans: short constant-energy trials per timestep and energy and pressure per cutoff,
+//! from one equilibrated state, on copies of it.
 
-use super::protocol::TuningReport;
-use crate::physics::{PotentialMode, Simulation, SimulationSpec, SimulationState, Thermostat};
+use super::request::{TuneError, TuneRequest};
+use crate::engine::session::Session;
+use crate::engine::watchdog::Alarm;
+use crate::physics::{PotentialMode, Simulation, SimulationSpec, SimulationState, Species, Thermostat};
 use serde::Serialize;
 use std::sync::atomic::{AtomicBool, Ordering};
 
 /// How one timestep fared over a short constant-energy run.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct TimestepRow {
-    /// Timestep in τ.
-    pub timestep: f64,
+    /// Timestep in τ (`timestep` in tuning.json).
+    #[serde(rename = "timestep")]
+    pub timestep_tau: f64,
     pub steps: u64,
     /// Slope of the total energy per atom, ε per τ (least squares).
     pub drift_per_atom_per_tau: f64,
@@ -25,8 +28,9 @@ pub struct TimestepRow {
 /// Energy and pressure at one cutoff, averaged over configurations.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct CutoffRow {
-    /// Cutoff in σ.
-    pub cutoff: f64,
+    /// Cutoff in σ (`cutoff` in tuning.json).
+    #[serde(rename = "cutoff")]
+    pub cutoff_sigma: f64,
     /// Potential energy per atom and pressure as a run in the chosen mode reports them (no tail).
     pub potential: f64,
     pub pressure: f64,
@@ -34,6 +38,27 @@ pub struct CutoffRow {
     /// inside r_c plus the analytic tail corrections.
     pub potential_full_estimate: f64,
     pub pressure_full_estimate: f64,
+}
+
+/// What a tuning scan found, all in reduced units of `reference`.
+#[derive(Clone, Debug, PartialEq)]
+pub struct TuningReport {
+    /// Step of the user's simulation the scan started from.
+    pub from_step: u64,
+    /// Unit reference species of the scanned simulation.
+    pub reference: Species,
+    /// Potential mode the cutoff rows are reported in.
+    pub potential: PotentialMode,
+    /// Simulated time of each timestep trial, τ.
+    pub duration_tau: f64,
+    /// Configurations the cutoff rows average over.
+    pub configurations: usize,
+    /// One row per timestep, in the order asked.
+    pub timesteps: Vec<TimestepRow>,
+    /// One row per cutoff, in the order asked.
+    pub cutoffs: Vec<CutoffRow>,
+    /// Largest timestep that did not blow up and kept the fluctuation ratio under the limit (τ).
+    pub recommended: Option<f64>,
 }
 
 /// Configurations the cutoff scan averages over.
@@ -65,7 +90,7 @@ pub fn timestep_scan(
             let steps = ((duration / dt).round() as u64).max(10);
             let every = (steps / 200).max(1);
             let mut row = TimestepRow {
-                timestep: dt,
+                timestep_tau: dt,
                 steps,
                 drift_per_atom_per_tau: f64::NAN,
                 relative_drift: f64::NAN,
@@ -110,7 +135,7 @@ pub fn timestep_scan(
 pub fn recommended_timestep(rows: &[TimestepRow]) -> Option<f64> {
     rows.iter()
         .filter(|r| !r.blew_up && r.fluctuation_ratio <= FLUCTUATION_LIMIT)
-        .map(|r| r.timestep)
+        .map(|r| r.timestep_tau)
         .fold(None, |a, b| Some(a.map_or(b, |a: f64| a.max(b))))
 }
 
@@ -153,7 +178,7 @@ pub fn cutoff_scan(
         if ok && !states.is_empty() {
             let n = states.len() as f64;
             rows.push(CutoffRow {
-                cutoff: rc,
+                cutoff_sigma: rc,
                 potential: acc[0] / n,
                 potential_full_estimate: acc[1] / n,
                 pressure: acc[2] / n,
@@ -164,34 +189,33 @@ pub fn cutoff_scan(
     rows
 }
 
-/// Both scans of one tuning request from `state`: each timestep, then the cutoffs averaged
-/// over `state` and further configurations taken [`TUNE_STEPS_APART`] steps apart on a copy
-/// (the caller's simulation is not touched). `stop` ends the scan with an error within a
-/// fraction of a trial.
+/// Both scans of `request` from `state`: each timestep, then the cutoffs averaged over
+/// `state` and further configurations taken [`TUNE_STEPS_APART`] steps apart on a copy (the
+/// caller's simulation is not touched). `stop` ends the scan with [`TuneError::Stopped`] within
+/// a fraction of a trial. The request is taken as checked ([`TuneRequest::check`]).
 pub fn full_scan(
     spec: SimulationSpec,
     state: SimulationState,
-    timesteps: &[f64],
-    cutoffs: &[f64],
-    duration: f64,
+    request: &TuneRequest,
     stop: &AtomicBool,
-) -> Result<TuningReport, String> {
+) -> Result<TuningReport, TuneError> {
     let stopped = || {
         if stop.load(Ordering::Relaxed) {
-            Err("the engine stopped".to_string())
+            Err(TuneError::Stopped)
         } else {
             Ok(())
         }
     };
+    let (cutoffs, duration) = (&request.cutoffs_sigma, request.duration_tau);
     let from_step = state.step;
-    let mut rows = Vec::with_capacity(timesteps.len());
-    for &dt in timesteps {
+    let mut rows = Vec::with_capacity(request.timesteps_tau.len());
+    for &dt in &request.timesteps_tau {
         stopped()?;
         rows.extend(timestep_scan(&spec, &state, &[dt], duration, stop));
     }
     stopped()?;
     // More configurations for the cutoff averages, from a copy that runs on as the user's would.
-    let mut copy = Simulation::from_state(spec.clone(), state.clone()).map_err(|e| e.to_string())?;
+    let mut copy = Simulation::from_state(spec.clone(), state.clone())?;
     let mut states = vec![state];
     while states.len() < TUNE_CONFIGURATIONS {
         stopped()?;
@@ -201,23 +225,46 @@ pub fn full_scan(
         states.push(copy.state());
     }
     let crows = cutoff_scan(&spec, &states, cutoffs, spec.potential);
-    if let Some(&missing) = cutoffs.iter().find(|&&rc| !crows.iter().any(|r| r.cutoff == rc)) {
-        return Err(format!(
-            "cutoffs: {missing} σ could not be evaluated; allowed: cutoff + skin ({} σ) at most half the box ({:.4} σ)",
-            spec.skin,
-            0.5 * spec.box_length()
-        ));
+    if let Some(&missing) = cutoffs
+        .iter()
+        .find(|&&rc| !crows.iter().any(|r| r.cutoff_sigma == rc))
+    {
+        return Err(TuneError::NotEvaluated {
+            cutoff_sigma: missing,
+            skin_sigma: spec.skin,
+            half_box_sigma: 0.5 * spec.box_length(),
+        });
     }
     Ok(TuningReport {
         from_step,
         reference: spec.kinds[0],
         potential: spec.potential,
-        duration,
+        duration_tau: duration,
         configurations: states.len(),
         recommended: recommended_timestep(&rows),
         timesteps: rows,
         cutoffs: crows,
     })
+}
+
+/// The command line's tuning: `steps` steps of `session` as set up (to equilibrate), then
+/// [`full_scan`] of `request` from there. A blow-up while equilibrating is
+/// [`TuneError::Equilibration`].
+pub fn equilibrate_and_scan(
+    session: &mut Session,
+    steps: u64,
+    request: &TuneRequest,
+) -> Result<TuningReport, TuneError> {
+    for _ in 0..steps {
+        if let Some(a) = session.step().alarm
+            && matches!(a, Alarm::NonFinite { .. })
+        {
+            return Err(TuneError::Equilibration(a.describe()));
+        }
+    }
+    let sim = session.simulation();
+    let never = AtomicBool::new(false);
+    full_scan(sim.spec().clone(), sim.state(), request, &never)
 }
 
 fn mean(x: &[f64]) -> f64 {
@@ -251,7 +298,7 @@ mod tests {
     #[test]
     fn recommendation_skips_blow_ups_and_noisy_steps() {
         let row = |dt, ratio, blew_up| TimestepRow {
-            timestep: dt,
+            timestep_tau: dt,
             steps: 1,
             drift_per_atom_per_tau: 0.0,
             relative_drift: 0.0,

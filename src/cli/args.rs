@@ -1,0 +1,144 @@
+//! The command line's arguments: every subcommand, flag, default and help text. They are a
+//! contract with users and scripts; change them only on purpose.
+
+use clap::{Parser, Subcommand};
+use std::path::PathBuf;
+
+// `noblescope [COMMAND]` (no doc comment: clap would take it for help text).
+#[derive(Parser)]
+#[command(name = "noblescope", version, about = "Set up, run and watch molecular dynamics of noble gases.", long_about = None)]
+pub struct Cli {
+    // The subcommand; none opens the window.
+    #[command(subcommand)]
+    pub command: Option<Cmd>,
+}
+
+/// Flags shared by `run` and `resume`.
+#[derive(clap::Args)]
+pub struct RunFlags {
+    /// Run until this step instead of the setup's `steps`.
+    #[arg(long)]
+    pub steps: Option<u64>,
+    /// Worker threads for the force loop (default: all cores).
+    #[arg(long)]
+    pub threads: Option<usize>,
+    /// No progress bar.
+    #[arg(long)]
+    pub quiet: bool,
+    /// Replace the files of an earlier run in the output folder.
+    #[arg(long)]
+    pub overwrite: bool,
+}
+
+// The subcommands.
+#[derive(Subcommand)]
+pub enum Cmd {
+    /// Run a setup file headless and write energy.csv, summary.json and final.checkpoint.
+    Run {
+        /// The setup file (RON).
+        setup: PathBuf,
+        /// Output folder (default: runs/<setup file name>).
+        #[arg(long)]
+        out: Option<PathBuf>,
+        #[command(flatten)]
+        run: RunFlags,
+    },
+    /// Continue a run from a checkpoint, bit for bit as if it had never stopped.
+    Resume {
+        /// A checkpoint written by `run` or by the window.
+        checkpoint: PathBuf,
+        /// Output folder for the continued run.
+        #[arg(long)]
+        out: PathBuf,
+        #[command(flatten)]
+        run: RunFlags,
+    },
+    /// Open the window on a setup file; with --frames, run a scripted watch and exit.
+    Watch {
+        /// The setup file (RON).
+        setup: PathBuf,
+        /// Start running at once.
+        #[arg(long)]
+        run: bool,
+        /// Close after this many displayed frames (scripted mode).
+        #[arg(long)]
+        frames: Option<u32>,
+        /// Write a JSON report (frame times, atom-steps per second while displayed) here.
+        #[arg(long)]
+        report: Option<PathBuf>,
+        /// Save a PNG picture of the window here before closing.
+        #[arg(long)]
+        screenshot: Option<PathBuf>,
+        /// What to show first.
+        #[arg(long, value_enum)]
+        view: Option<noblescope::ui::watch::StartView>,
+        /// Window size in points, e.g. 1440x900.
+        #[arg(long, value_parser = parse_size)]
+        size: Option<[f32; 2]>,
+        /// Worker threads for the force loop (default: all cores).
+        #[arg(long)]
+        threads: Option<usize>,
+    },
+    /// Scan timesteps and cutoffs from an equilibrated state of a setup.
+    Tune {
+        /// The setup file (RON).
+        setup: PathBuf,
+        /// Timesteps to try, in the unit of the setup's `timestep` (default: 0.5, 1, 1.5, 2 and 3 times it).
+        #[arg(long, value_delimiter = ',')]
+        timesteps: Vec<f64>,
+        /// Cutoffs to try, in the unit of the setup's `cutoff` (default: 2 σ to 5 σ as the box allows).
+        #[arg(long, value_delimiter = ',')]
+        cutoffs: Vec<f64>,
+        /// Simulated time of each timestep trial, in τ.
+        #[arg(long, default_value_t = 5.0)]
+        time: f64,
+        /// Steps to equilibrate first (default: the setup's equilibration_steps).
+        #[arg(long)]
+        equilibrate: Option<u64>,
+        /// Write tuning.json into this folder.
+        #[arg(long)]
+        out: Option<PathBuf>,
+        #[arg(long)]
+        threads: Option<usize>,
+    },
+    /// Measure speed and memory on the standard LJ liquid.
+    Bench {
+        /// Atom counts to measure, ascending.
+        #[arg(long, value_delimiter = ',', default_values_t = vec![32_000usize, 256_000])]
+        atoms: Vec<usize>,
+        /// Timed steps per size.
+        #[arg(long, default_value_t = 200)]
+        steps: u64,
+        /// Untimed steps before timing.
+        #[arg(long, default_value_t = 20)]
+        warmup: u64,
+        #[arg(long)]
+        threads: Option<usize>,
+        /// Write the results as JSON here too.
+        #[arg(long)]
+        json: Option<PathBuf>,
+        /// Also time the neighbour-list build and the force loop alone.
+        #[arg(long)]
+        stages: bool,
+    },
+}
+
+/// A `--size` that is not WIDTHxHEIGHT within the allowed range.
+#[derive(Debug, thiserror::Error)]
+#[error("--size: \"{text}\" is not a size; allowed: WIDTHxHEIGHT with each from 400 to 8000, e.g. 1440x900")]
+pub struct SizeError {
+    /// The text given.
+    pub text: String,
+}
+
+/// Parses `--size` ("1440x900").
+fn parse_size(text: &str) -> Result<[f32; 2], SizeError> {
+    let bad = || SizeError { text: text.into() };
+    let (w, h) = text.split_once(['x', 'X']).ok_or_else(bad)?;
+    let w: f32 = w.trim().parse().map_err(|_| bad())?;
+    let h: f32 = h.trim().parse().map_err(|_| bad())?;
+    if !(400.0..=8000.0).contains(&w) || !(400.0..=8000.0).contains(&h) {
+        return Err(bad());
+    }
+    Ok([w, h])
+}

@@ -1,0 +1,179 @@
+//! What the command line prints: the run report, the tuning tables and the bench table.
+
+use noblescope::engine::bench::{BenchResult, StageTimes};
+use noblescope::engine::tuning::{FLUCTUATION_LIMIT, TuneInput, TuningReport};
+use noblescope::io::Setup;
+use noblescope::io::setup::Length;
+use noblescope::io::summary::{MODEL_CAUTION, Summary};
+use std::path::Path;
+
+/// The summary of a finished run, written to `out`.
+pub fn run_report(summary: &Summary, out: &Path) {
+    let pe = summary.potential_energy_per_atom;
+    let p = summary.pressure;
+    let t = summary.temperature;
+    println!(
+        "{} atoms, {} steps, {} samples averaged -> {}",
+        summary.atoms,
+        summary.steps,
+        summary.samples_used,
+        out.display()
+    );
+    println!("  potential energy per atom  {:.5} ± {:.5} ε", pe.mean, pe.stderr);
+    println!(
+        "  pressure                   {:.5} ± {:.5} ε/σ³",
+        p.mean, p.stderr
+    );
+    println!("  temperature                {:.5} ± {:.5} ε/k", t.mean, t.stderr);
+    if let Some(si) = &summary.si {
+        println!(
+            "  = {:.4} kJ/mol, {:.2} ± {:.2} bar, {:.2} K, {:.4} g/cm³",
+            si.potential_energy_per_atom.mean,
+            si.pressure.mean,
+            si.pressure.stderr,
+            si.temperature.mean,
+            si.density
+        );
+    }
+    println!(
+        "  relative energy drift      {:.3e}",
+        summary.relative_energy_drift
+    );
+    println!(
+        "  speed                      {:.3e} atom-steps/s on {} threads",
+        summary.atom_steps_per_second, summary.threads
+    );
+    if summary.equilibration.configured_start_too_early {
+        println!(
+            "  note: the energy looks equilibrated only from step {} (equilibration_steps is {})",
+            summary.equilibration.detected_start_step, summary.equilibration.configured_start_step
+        );
+    }
+    println!("  {MODEL_CAUTION}");
+}
+
+/// Both tables of a tuning scan: timesteps in the unit `input` typed them in (the setup's) and
+/// in τ, cutoffs in the unit of the setup's cutoff.
+pub fn tune_tables(setup: &Setup, input: &TuneInput, report: &TuningReport) {
+    let dt_unit = setup.timestep.symbol();
+    let typed: Vec<f64> = input.timesteps.iter().map(|d| d.value()).collect();
+    let rows = &report.timesteps;
+    println!(
+        "timestep scan: constant energy for {} τ from the equilibrated state",
+        report.duration_tau
+    );
+    println!(
+        "{:>12} {:>12} {:>8} {:>16} {:>14} {:>12}",
+        format!("dt [{dt_unit}]"),
+        "dt [tau]",
+        "steps",
+        "drift/atom/tau",
+        "rel. drift",
+        "dE/dK rms"
+    );
+    for (r, v) in rows.iter().zip(&typed) {
+        if r.blew_up {
+            println!(
+                "{v:>12.5} {:>12.5} {:>8} {:>16}",
+                r.timestep_tau, r.steps, "blew up"
+            );
+        } else {
+            println!(
+                "{v:>12.5} {:>12.5} {:>8} {:>16.3e} {:>14.3e} {:>12.4}",
+                r.timestep_tau, r.steps, r.drift_per_atom_per_tau, r.relative_drift, r.fluctuation_ratio
+            );
+        }
+    }
+    match report.recommended {
+        Some(dt) => println!(
+            "largest timestep with total-energy fluctuation under {:.0}% of the kinetic: {:.5} {dt_unit} ({dt:.5} τ)",
+            FLUCTUATION_LIMIT * 100.0,
+            typed[rows.iter().position(|r| r.timestep_tau == dt).unwrap_or(0)]
+        ),
+        None => println!("no timestep tried conserved energy well enough: try smaller ones"),
+    }
+    if report.recommended == rows.iter().map(|r| r.timestep_tau).reduce(f64::max) {
+        println!("(that is the largest timestep tried: larger ones may pass too)");
+    }
+    let (len_unit, per_sigma) = match setup.cutoff {
+        Length::Sigma(_) => ("sigma", 1.0),
+        Length::Angstrom(_) => ("A", setup.units().sigma_angstrom()),
+    };
+    println!(
+        "cutoff scan: {:?}, averaged over {} configurations (reduced units)",
+        report.potential, report.configurations
+    );
+    println!(
+        "{:>12} {:>12} {:>12} {:>16} {:>16}",
+        format!("rc [{len_unit}]"),
+        "U/N (mode)",
+        "P (mode)",
+        "U/N full est.",
+        "P full est."
+    );
+    for r in &report.cutoffs {
+        println!(
+            "{:>12.4} {:>12.5} {:>12.5} {:>16.5} {:>16.5}",
+            r.cutoff_sigma * per_sigma,
+            r.potential,
+            r.pressure,
+            r.potential_full_estimate,
+            r.pressure_full_estimate
+        );
+    }
+    println!(
+        "(full estimate: unshifted pair terms inside rc plus analytic tail corrections, g(r) = 1 beyond rc)"
+    );
+}
+
+/// The bench table's title and column heads.
+pub fn bench_header() {
+    println!("standard LJ liquid, rho*=0.8442, T*=1.44, rc=2.5, skin=0.3, TruncatedShifted, NVE, dt*=0.005");
+    println!(
+        "{:>9} {:>7} {:>8} {:>14} {:>10} {:>8} {:>12} {:>12}",
+        "atoms", "steps", "threads", "atom-steps/s", "ns/a-step", "builds", "peak B/atom", "heap B/atom"
+    );
+}
+
+/// One row of the bench table.
+pub fn bench_row(r: &BenchResult) {
+    println!(
+        "{:>9} {:>7} {:>8} {:>14.4e} {:>10.1} {:>8} {:>12} {:>12.1}",
+        r.atoms,
+        r.steps,
+        r.threads,
+        r.atom_steps_per_second,
+        r.nanoseconds_per_atom_step,
+        r.list_builds,
+        r.peak_bytes_per_atom
+            .map(|b| format!("{b:.1}"))
+            .unwrap_or_else(|| "n/a".into()),
+        r.heap_bytes_per_atom
+    );
+}
+
+/// How the cost per atom-step grew from the smallest to the largest size measured.
+pub fn bench_scaling(results: &[BenchResult]) {
+    if let [first, .., last] = results {
+        println!(
+            "cost per atom-step at {} atoms / at {} atoms: {:.3}",
+            last.atoms,
+            first.atoms,
+            last.nanoseconds_per_atom_step / first.nanoseconds_per_atom_step
+        );
+    }
+}
+
+/// The stage times of one size (`bench --stages`).
+pub fn bench_stages(s: &StageTimes) {
+    let per_atom = |seconds: f64| seconds * 1e9 / s.atoms as f64;
+    println!(
+        "stages at {} atoms: list build {:.2} ms ({:.1} ns/atom), forces {:.2} ms ({:.1} ns/atom, {:.1} pairs/atom)",
+        s.atoms,
+        s.build_seconds * 1e3,
+        per_atom(s.build_seconds),
+        s.force_seconds * 1e3,
+        per_atom(s.force_seconds),
+        s.pairs_per_atom
+    );
+}
