@@ -576,7 +576,7 @@ fn main() -> ExitCode {
                     return ExitCode::from(2);
                 }
             };
-            if let Err(e) = parsed.resolve() {
+            if let Err(e) = parsed.resolve_for_this_machine() {
                 eprintln!("error: {}: {e}", setup.display());
                 return ExitCode::from(2);
             }
