@@ -624,5 +624,5 @@ fn open_window(with: Option<(noblescope::ui::StartOptions, Option<[f32; 2]>)>) -
             None,
         )
     });
-    noblescope::ui::window::run(opts, size)
+    Ok(noblescope::ui::window::run(opts, size)?)
 }
