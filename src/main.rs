@@ -44,5 +44,5 @@ fn open_window(with: Option<WindowPlan>) -> Result<(), CliError> {
             None,
         )
     });
-    noblescope::ui::window::run(opts, size).map_err(|e: anyhow::Error| CliError::Failed(format!("{e:#}")))
+    noblescope::ui::window::run(opts, size).map_err(|e| CliError::Failed(e.to_string()))
 }

@@ -66,7 +66,7 @@ pub fn run(cmd: Cmd) -> Result<Next, CliError> {
             }
             let parsed = Setup::load(&setup).map_err(|e| CliError::BadInput(e.to_string()))?;
             parsed
-                .resolve()
+                .resolve_for_this_machine()
                 .map_err(|e| CliError::BadInput(format!("{}: {e}", setup.display())))?;
             for note in parsed.cautions() {
                 eprintln!("caution: {note}");

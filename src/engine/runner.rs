@@ -80,7 +80,7 @@ impl EngineHandle {
     /// Starts the engine; `wake` is called whenever events or a frame are ready (e.g. to
     /// request a repaint).
     pub fn spawn_with(setup: Setup, wake: Option<Box<dyn Fn() + Send>>) -> Result<EngineHandle, SetupError> {
-        setup.resolve()?;
+        setup.resolve_for_this_machine()?;
         let (ctx, crx) = mpsc::channel();
         let (etx, erx) = mpsc::channel();
         let frames = Arc::new(FrameMailbox::new());

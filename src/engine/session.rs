@@ -26,7 +26,7 @@ pub struct StepOutcome {
 impl Session {
     /// Validates the setup and builds its start configuration.
     pub fn new(setup: Setup) -> Result<Session, SetupError> {
-        let spec = setup.resolve()?;
+        let spec = setup.resolve_for_this_machine()?;
         let sim = Simulation::new(spec)?;
         Ok(Session {
             setup,
@@ -38,7 +38,7 @@ impl Session {
     /// Continues from a checkpoint.
     pub fn from_checkpoint(c: Checkpoint) -> Result<Session, SetupError> {
         // The setup must still be valid; the saved spec carries any live changes.
-        c.setup.resolve()?;
+        c.setup.resolve_for_this_machine()?;
         let sim = Simulation::from_state(c.spec, c.state)?;
         Ok(Session {
             setup: c.setup,

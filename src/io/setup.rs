@@ -369,7 +369,9 @@ impl Setup {
 
     /// Validates every field and reduces the setup to a spec in reduced units.
     ///
-    /// Errors name the field, the value given and the allowed range.
+    /// Errors name the field, the value given and the allowed range. Pure: it reads nothing
+    /// of the machine, so it may run every frame; whatever starts a simulation calls
+    /// [`Setup::resolve_for_this_machine`] instead.
     pub fn resolve(&self) -> Result<SimulationSpec, SetupError> {
         self.check_species()?;
         if !(2..=MAX_ATOMS).contains(&self.atoms) {
@@ -379,7 +381,6 @@ impl Setup {
                 format!("2 to {MAX_ATOMS}"),
             ));
         }
-        check_memory(self.atoms)?;
         let density = self.reduced_density(self.density)?;
         in_range(
             "density",
@@ -514,6 +515,20 @@ impl Setup {
         }
         spec.check()?;
         Ok(spec)
+    }
+
+    /// [`Setup::resolve`], then [`Setup::check_memory_available`]: for every place that starts
+    /// a simulation.
+    pub fn resolve_for_this_machine(&self) -> Result<SimulationSpec, SetupError> {
+        let spec = self.resolve()?;
+        self.check_memory_available()?;
+        Ok(spec)
+    }
+
+    /// Refuses an atom count whose arrays would not fit in the memory the machine has free now
+    /// (reads /proc/meminfo; passes where there is none). The error names the `atoms` field.
+    pub fn check_memory_available(&self) -> Result<(), SetupError> {
+        check_memory(self.atoms)
     }
 
     fn check_species(&self) -> Result<(), SetupError> {

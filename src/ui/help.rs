@@ -1,19 +1,9 @@
-//! Keys and the help overlay, with the model caution.
+//! The help overlay: the keys (from [`super::shortcuts::SHORTCUTS`]), the panels, and the model
+//! caution.
 
 use super::palette;
+use super::shortcuts::SHORTCUTS;
 use crate::io::summary::MODEL_CAUTION;
-
-/// The keyboard shortcuts, as (key, what it does).
-pub const KEYS: &[(&str, &str)] = &[
-    ("Space", "run / pause"),
-    ("S", "one step (pauses first)"),
-    ("R", "restart the present setup from step 0"),
-    ("Ctrl+1 / Ctrl+2", "box 3D view / slab 2D view"),
-    ("Ctrl+3", "show or hide the setup form"),
-    ("Ctrl+O / Ctrl+S", "open / save a setup file"),
-    ("Ctrl+P", "save a PNG picture of the window"),
-    ("F1 or ?", "show or hide this help"),
-];
 
 /// Draws the help window while `open`.
 pub fn show(ctx: &egui::Context, open: &mut bool) {
@@ -25,9 +15,9 @@ pub fn show(ctx: &egui::Context, open: &mut bool) {
         .show(ctx, |ui| {
             ui.heading("Keys");
             egui::Grid::new("keys").num_columns(2).striped(true).show(ui, |ui| {
-                for (k, what) in KEYS {
-                    ui.monospace(*k);
-                    ui.label(*what);
+                for s in SHORTCUTS {
+                    ui.monospace(s.keys(ui.ctx()));
+                    ui.label(s.what);
                     ui.end_row();
                 }
             });
@@ -44,9 +34,15 @@ pub fn show(ctx: &egui::Context, open: &mut bool) {
 
 #[cfg(test)]
 mod tests {
+    use super::SHORTCUTS;
+
     #[test]
     fn every_key_has_a_description() {
-        assert!(super::KEYS.iter().all(|(k, d)| !k.is_empty() && !d.is_empty()));
-        assert!(super::KEYS.iter().any(|(k, _)| *k == "Space"));
+        assert!(
+            SHORTCUTS
+                .iter()
+                .all(|s| !s.keys_plain().is_empty() && !s.what.is_empty())
+        );
+        assert!(SHORTCUTS.iter().any(|s| s.keys_plain() == "Space"));
     }
 }

@@ -1,25 +1,38 @@
 //! The desktop workbench window. It only draws and sends commands to the engine thread; the
 //! physics stays in [`crate::engine`].
 //!
-//! - [`app`]: the eframe application, owning the engine handle;
+//! - [`app`]: the eframe application, owning the engine handle and running each frame;
+//! - [`events`]: engine events turned into window state (a plain function, tested without egui);
+//! - [`leave`]: the "Keep your edits?" question before closing or opening another setup;
+//! - [`shortcuts`]: the one table of keys, read by the key handling, menus, tooltips and help;
+//! - [`persist`]: what is remembered between sessions, and the start state;
+//! - [`file_actions`]: opening and saving setups, checkpoints, the energy log and pictures;
+//! - [`menu_bar`], [`panels`]: the top bar, and the panels and overlays around the view;
 //! - [`setup_form`], [`unit_field`]: editing and validating a setup;
 //! - [`particle_view`], [`slab_view`], [`gl_spheres`], [`cull`]: the atoms in 3D or as a flat slab;
 //! - [`plots`], [`series`]: live plots on bounded, envelope-keeping series;
 //! - [`tuning_panel`]: timestep and cutoff scans before a long run;
-//! - [`status`], [`help`], [`palette`]: status line, keys and colours;
+//! - [`status`], [`help`], [`palette`]: status line and messages, the help overlay and colours;
 //! - [`files`]: dialogs and writers; [`watch`]: scripted watching for reports and pictures;
 //! - [`window`]: opening the native window.
 
 pub mod app;
 pub mod cull;
+pub mod events;
+pub mod file_actions;
 pub mod files;
 pub mod gl_spheres;
 pub mod help;
+pub mod leave;
+pub mod menu_bar;
 pub mod palette;
+pub mod panels;
 pub mod particle_view;
+pub mod persist;
 pub mod plots;
 pub mod series;
 pub mod setup_form;
+pub mod shortcuts;
 pub mod slab_view;
 pub mod status;
 pub mod tuning_panel;

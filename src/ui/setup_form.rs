@@ -2,11 +2,13 @@
 //!
 //! The form keeps text as typed. [`SetupForm::build`] turns it into a [`Setup`] and validates
 //! it with [`Setup::resolve`]; every error is attached to the field it names, so the field shows
-//! the value and the allowed range, and nothing invalid can be applied.
+//! the value and the allowed range, and nothing invalid can be applied. That validation is pure
+//! and runs every frame; whether the atoms fit in this machine's free memory is checked once, when
+//! Apply is pressed ([`Setup::check_memory_available`]).
 
 use super::palette;
 use super::unit_field::{DensityUnit, LengthUnit, RateUnit, TemperatureUnit, TimeUnit, UnitField};
-use crate::io::setup::{Ensemble, Setup, SpeciesShare, ThermostatChoice};
+use crate::io::setup::{Ensemble, Setup, SetupError, SpeciesShare, ThermostatChoice};
 use crate::physics::{PotentialMode, Species};
 use std::collections::BTreeMap;
 
@@ -64,6 +66,9 @@ pub struct SetupForm {
     pub trajectory_every: Option<u64>,
     /// Kept from the loaded setup (not edited in the form).
     pub rdf_every: Option<u64>,
+    /// The setup Apply last refused because it does not fit in memory, and why; shown at the
+    /// atoms field while the form still describes that setup.
+    pub memory_refusal: Option<(Setup, SetupError)>,
 }
 
 /// Field errors by setup field name ("density", "species[1].share", …); "" holds errors that
@@ -150,6 +155,7 @@ impl SetupForm {
             sample_every: s.sample_every.to_string(),
             trajectory_every: s.trajectory_every,
             rdf_every: s.rdf_every,
+            memory_refusal: None,
         }
     }
 
@@ -278,6 +284,14 @@ impl SetupForm {
         }
     }
 
+    /// Why Apply refused `setup` (it does not fit in this machine's memory), if it did.
+    fn refusal_of(&self, setup: &Setup) -> Option<&SetupError> {
+        self.memory_refusal
+            .as_ref()
+            .filter(|(refused, _)| refused == setup)
+            .map(|(_, e)| e)
+    }
+
     /// Whether `next` differs from `running` only in fields that can change while running
     /// (timestep, cutoff, skin, potential, tail correction, ensemble, temperature target).
     pub fn live_changeable(running: &Setup, next: &Setup) -> bool {
@@ -296,7 +310,12 @@ impl SetupForm {
     pub fn show(&mut self, ui: &mut egui::Ui, running: &Setup) -> Option<FormAction> {
         let (draft, _) = self.draft();
         let built = self.build();
-        let errors = built.as_ref().err().cloned().unwrap_or_default();
+        let mut errors = built.as_ref().err().cloned().unwrap_or_default();
+        let refused = built.as_ref().ok().and_then(|s| self.refusal_of(s)).cloned();
+        if let Some(e) = &refused {
+            errors.insert(e.field_name().unwrap_or_default().to_string(), e.to_string());
+        }
+        let mut new_refusal = None;
         let mut action = None;
         let err_at = |ui: &mut egui::Ui, key: &str| {
             if let Some(e) = errors.get(key) {
@@ -468,7 +487,10 @@ impl SetupForm {
                 .on_disabled_hover_text(if ok { "nothing to apply" } else { "fix the marked fields first" });
             if apply.clicked()
                 && let Ok(s) = &built {
-                    action = Some(FormAction::Apply(Box::new(s.clone())));
+                    match s.check_memory_available() {
+                        Ok(()) => action = Some(FormAction::Apply(Box::new(s.clone()))),
+                        Err(e) => new_refusal = Some((s.clone(), e)),
+                    }
                 }
             let live = built.as_ref().map(|s| Self::live_changeable(running, s)).unwrap_or(false);
             let r = ui
@@ -483,7 +505,11 @@ impl SetupForm {
                 action = Some(FormAction::Revert);
             }
         });
-        if built.is_err() {
+        if new_refusal.is_some() {
+            self.memory_refusal = new_refusal;
+            ui.ctx().request_repaint();
+        }
+        if built.is_err() || refused.is_some() {
             ui.colored_label(
                 palette::ERROR_TEXT,
                 "The setup has errors (marked above); the running simulation is unchanged.",

@@ -11,8 +11,49 @@ pub struct StatusLine {
     pub status: Status,
     /// Latest unhandled watchdog alarm.
     pub alarm: Option<Alarm>,
-    /// Latest message for the user (saved files, refused commands …) and whether it is an error.
-    pub message: Option<(String, bool)>,
+    /// Latest message for the user (saved files, refused commands …).
+    pub message: Option<Message>,
+}
+
+/// Whether a message reports something done or something that went wrong.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum MessageKind {
+    /// Something happened as asked.
+    Info,
+    /// Something could not be done; shown in the error colour.
+    Error,
+}
+
+/// One message for the user in the status line.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Message {
+    /// The sentence shown.
+    pub text: String,
+    /// Info or error.
+    pub kind: MessageKind,
+}
+
+impl Message {
+    /// A message that something happened as asked.
+    pub fn info(text: impl Into<String>) -> Self {
+        Message {
+            text: text.into(),
+            kind: MessageKind::Info,
+        }
+    }
+
+    /// A message that something could not be done.
+    pub fn error(text: impl Into<String>) -> Self {
+        Message {
+            text: text.into(),
+            kind: MessageKind::Error,
+        }
+    }
+
+    /// Whether it reports something that went wrong.
+    pub fn is_error(&self) -> bool {
+        self.kind == MessageKind::Error
+    }
 }
 
 /// Compact count: 12 345 → "12.3 k", 4.2e6 → "4.20 M".
@@ -30,6 +71,16 @@ pub fn si_count(v: f64) -> String {
 }
 
 impl StatusLine {
+    /// Shows `text` as news.
+    pub fn info(&mut self, text: impl Into<String>) {
+        self.message = Some(Message::info(text));
+    }
+
+    /// Shows `text` as an error.
+    pub fn error(&mut self, text: impl Into<String>) {
+        self.message = Some(Message::error(text));
+    }
+
     /// The status text: step, simulated time, steps/s, atom-steps/s, list rebuilds.
     pub fn text(&self, units: UnitSystem) -> String {
         let s = &self.status;
@@ -79,13 +130,12 @@ impl StatusLine {
     pub fn show(&self, ui: &mut egui::Ui, units: UnitSystem) {
         ui.horizontal_wrapped(|ui| {
             ui.monospace(self.text(units));
-            if let Some((m, error)) = &self.message {
+            if let Some(m) = &self.message {
                 ui.separator();
-                if *error {
-                    ui.colored_label(palette::ERROR_TEXT, m);
-                } else {
-                    ui.label(m);
-                }
+                match m.kind {
+                    MessageKind::Error => ui.colored_label(palette::ERROR_TEXT, &m.text),
+                    MessageKind::Info => ui.label(&m.text),
+                };
             }
         });
     }

@@ -2,6 +2,8 @@
 //! frames, then write a report (frame times, simulation speed while displayed) and a picture,
 //! and close. Used by `noblescope watch` and the screenshot script.
 
+use super::app::NoblescopeApp;
+use crate::engine::Command;
 use std::path::PathBuf;
 use std::time::Instant;
 
@@ -166,10 +168,184 @@ impl WatchRecorder {
     }
 }
 
+/// What a scripted watch wants done after this frame.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub enum WatchNext {
+    /// Nothing yet.
+    Wait,
+    /// Take the picture into this file; the watch finishes once it is written.
+    Screenshot(PathBuf),
+    /// Write the report and close the window.
+    Finish,
+}
+
+/// A scripted watch in progress: its plan, its measurements and whether it is done.
+#[derive(Debug)]
+pub struct Watching {
+    plan: WatchPlan,
+    recorder: WatchRecorder,
+    /// The first view's name, for the report.
+    view: String,
+    done: bool,
+}
+
+impl Watching {
+    /// Starts watching by `plan`, on the view named `view` ("3d", "slab", …).
+    pub fn new(plan: WatchPlan, view: &str) -> Self {
+        Watching {
+            plan,
+            recorder: WatchRecorder::new(),
+            view: view.into(),
+            done: false,
+        }
+    }
+
+    /// Whether the last step was taken (the picture is asked for or the report written).
+    pub fn done(&self) -> bool {
+        self.done
+    }
+
+    /// The measurements.
+    pub fn recorder_mut(&mut self) -> &mut WatchRecorder {
+        &mut self.recorder
+    }
+
+    /// Whether to start the run on this frame (the first one drawn, if the plan says so).
+    pub fn starts_run_now(&self, frames_drawn: u64) -> bool {
+        !self.done && self.plan.run && frames_drawn == 1
+    }
+
+    /// Counts the frame drawn at `now` and says what comes next. `waiting`: something the
+    /// picture must wait for is not there yet (a picture being taken, a tuning scan);
+    /// `has_atoms`: the engine has sent a frame of atoms.
+    pub fn step(&mut self, now: Instant, waiting: bool, has_atoms: bool) -> WatchNext {
+        if self.done {
+            return WatchNext::Wait;
+        }
+        let Some(n) = self.plan.frames else {
+            return WatchNext::Wait;
+        };
+        self.recorder.frame(now);
+        if waiting || self.recorder.measured() < n as usize {
+            return WatchNext::Wait;
+        }
+        match &self.plan.screenshot {
+            Some(p) if has_atoms => {
+                self.done = true;
+                WatchNext::Screenshot(p.clone())
+            }
+            Some(_) => WatchNext::Wait,
+            None => {
+                self.done = true;
+                WatchNext::Finish
+            }
+        }
+    }
+
+    /// Prints the report's summary and writes the report if the plan asks for it; `shot` is
+    /// the picture written (its path) or why it could not be.
+    pub fn finish(&self, atoms: usize, shot: Option<Result<String, String>>) {
+        let shot_name = match shot {
+            Some(Ok(p)) => Some(p),
+            Some(Err(e)) => {
+                eprintln!("error: screenshot: {e}");
+                None
+            }
+            None => None,
+        };
+        let report = self.recorder.report(atoms, &self.view, shot_name);
+        eprintln!(
+            "watch: {} frames, frame time p50 {:.1} ms, p95 {:.1} ms, max {:.1} ms; {:.3e} atom-steps/s while displayed",
+            report.frames,
+            report.frame_time_p50_ms,
+            report.frame_time_p95_ms,
+            report.frame_time_max_ms,
+            report.atom_steps_per_second
+        );
+        if let Some(path) = &self.plan.report {
+            let text = serde_json::to_string_pretty(&report).expect("a report serialises");
+            if let Err(e) = std::fs::write(path, text) {
+                eprintln!("error: {}: {e}", path.display());
+            }
+        }
+    }
+}
+
+impl NoblescopeApp {
+    /// Takes the scripted watch's step for this frame: start the run, take the picture, finish.
+    pub(super) fn watch_step(&mut self, ctx: &egui::Context) {
+        let Some(w) = &mut self.watch else { return };
+        if w.starts_run_now(self.frames_drawn) {
+            if let Some(e) = &self.engine {
+                e.send(Command::Run);
+            }
+            self.run.status.status.running = true;
+        }
+        // With `--view tuning` the picture waits for the scan's results.
+        let waiting = self.pictures.pending() || self.tune_at_start || self.run.tuning.scanning();
+        match w.step(Instant::now(), waiting, !self.frame.is_empty()) {
+            WatchNext::Wait => {}
+            WatchNext::Screenshot(p) => self.request_screenshot(ctx, p),
+            WatchNext::Finish => self.finish_watch(ctx, None),
+        }
+    }
+
+    /// Writes the watch's report and closes the window.
+    pub(super) fn finish_watch(&mut self, ctx: &egui::Context, shot: Option<Result<String, String>>) {
+        let Some(w) = &self.watch else { return };
+        w.finish(self.run.atoms, shot);
+        self.allow_close = true;
+        ctx.send_viewport_cmd(egui::ViewportCommand::Close);
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
     use std::time::Duration;
+
+    fn plan(frames: Option<u32>, screenshot: Option<&str>) -> WatchPlan {
+        WatchPlan {
+            run: true,
+            frames,
+            report: None,
+            screenshot: screenshot.map(PathBuf::from),
+        }
+    }
+
+    #[test]
+    fn a_watch_takes_its_picture_once_enough_frames_are_measured() {
+        let mut w = Watching::new(plan(Some(2), Some("/tmp/shot.png")), "3d");
+        assert!(w.starts_run_now(1) && !w.starts_run_now(2));
+        let t0 = Instant::now();
+        let at = |i: u64| t0 + Duration::from_millis(20 * i);
+        let mut i = 0;
+        while w.recorder.measured() < 2 {
+            i += 1;
+            assert_eq!(w.step(at(i), true, true), WatchNext::Wait, "frame {i} waits");
+        }
+        i += 1;
+        assert_eq!(w.step(at(i), false, false), WatchNext::Wait, "waits for atoms");
+        i += 1;
+        assert_eq!(
+            w.step(at(i), false, true),
+            WatchNext::Screenshot("/tmp/shot.png".into())
+        );
+        assert!(w.done());
+        assert_eq!(w.step(at(i + 1), false, true), WatchNext::Wait, "only once");
+        assert!(!w.starts_run_now(1));
+    }
+
+    #[test]
+    fn a_watch_without_picture_finishes_and_one_without_frames_never_does() {
+        let mut w = Watching::new(plan(Some(0), None), "slab");
+        assert_eq!(w.step(Instant::now(), false, false), WatchNext::Finish);
+        let mut open_ended = Watching::new(plan(None, None), "3d");
+        for _ in 0..50 {
+            assert_eq!(open_ended.step(Instant::now(), false, true), WatchNext::Wait);
+        }
+        assert!(!open_ended.done());
+    }
 
     #[test]
     fn measures_intervals_after_warmup_and_rates_from_steps() {

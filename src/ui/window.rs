@@ -2,8 +2,19 @@
 
 use super::app::{NoblescopeApp, StartOptions};
 
+/// Why the window could not be shown.
+#[derive(Debug, thiserror::Error)]
+pub enum WindowError {
+    /// The native window or its OpenGL context could not be created.
+    #[error("the window could not open: {reason}")]
+    Open {
+        /// What eframe reported.
+        reason: String,
+    },
+}
+
 /// Opens the workbench window and blocks until it closes.
-pub fn run(opts: StartOptions, size: Option<[f32; 2]>) -> anyhow::Result<()> {
+pub fn run(opts: StartOptions, size: Option<[f32; 2]>) -> Result<(), WindowError> {
     keep_freed_memory();
     let scripted = opts.watch.as_ref().is_some_and(|w| w.scripted());
     let mut viewport = egui::ViewportBuilder::default()
@@ -34,7 +45,9 @@ pub fn run(opts: StartOptions, size: Option<[f32; 2]>) -> anyhow::Result<()> {
             Ok(Box::new(NoblescopeApp::new(cc.storage, opts)))
         }),
     )
-    .map_err(|e| anyhow::anyhow!("the window could not open: {e}"))
+    .map_err(|e| WindowError::Open {
+        reason: e.to_string(),
+    })
 }
 
 /// Tells the C allocator to keep freed memory for reuse instead of handing it back to the
