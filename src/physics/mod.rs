@@ -1,6 +1,7 @@
 //! Pure numerics of the model, in reduced units. Knows nothing of threads, files or windows.
 
 pub mod forces;
+pub mod geometry;
 pub mod lattice;
 pub mod neighbours;
 pub mod observables;
