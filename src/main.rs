@@ -120,7 +120,7 @@ enum Cmd {
         /// Write the results as JSON here too.
         #[arg(long)]
         json: Option<PathBuf>,
-        /// Also time the neighbour-list build and the force loop alone.
+        /// Also time each stage (kick, drift, skin check, list build, forces) over normal steps.
         #[arg(long)]
         stages: bool,
     },
@@ -339,15 +339,26 @@ fn run_headless(cmd: Cmd) -> Result<(), RunError> {
             }
             if stages {
                 for &a in &atoms {
-                    let s = bench::measure_stages(a, 10);
+                    let r = bench::measure_stages(a, steps);
                     println!(
-                        "stages at {} atoms: list build {:.2} ms ({:.1} ns/atom), forces {:.2} ms ({:.1} ns/atom, {:.1} pairs/atom)",
-                        s.atoms,
-                        s.build_seconds * 1e3,
-                        s.build_seconds * 1e9 / a as f64,
-                        s.force_seconds * 1e3,
-                        s.force_seconds * 1e9 / a as f64,
-                        s.pairs_per_atom
+                        "stages at {} atoms, {} steps, {} list builds, {:.1} pairs/atom:",
+                        r.atoms, r.steps, r.list_builds, r.pairs_per_atom
+                    );
+                    for (stage, t) in r.times.stages().filter(|(_, t)| t.calls > 0) {
+                        println!(
+                            "  {:<18} {:>9.3} ms/step {:>8.2} ns/atom-step {:>6} calls {:>9.3} ms/call",
+                            stage.name(),
+                            r.seconds_per_step(stage) * 1e3,
+                            r.nanoseconds_per_atom_step(stage),
+                            t.calls,
+                            t.seconds_per_call() * 1e3
+                        );
+                    }
+                    println!(
+                        "  {:<18} {:>9.3} ms/step {:>8.2} ns/atom-step",
+                        "whole step",
+                        r.step_seconds() * 1e3,
+                        r.step_seconds() * 1e9 / a as f64
                     );
                 }
             }
