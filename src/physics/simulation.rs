@@ -468,7 +468,7 @@ impl Simulation {
     ///   rescale half-step.
     /// - Langevin: BAOAB, B A O A [rebuild, forces] B.
     ///
-    /// B is a half kick, A a drift, O the exact friction-and-noise step; [rebuild] rebuilds the
+    /// B is a half kick, A a drift, O the exact friction-and-noise step; "rebuild" rebuilds the
     /// neighbour list if some atom moved more than half the skin since the last build.
     pub fn step(&mut self) -> Result<(), Blowup> {
         let start = self.clock.step_started();
@@ -685,6 +685,87 @@ pub fn reverse_velocities(system: &mut System) {
     for v in &mut system.velocities {
         for x in v.iter_mut() {
             *x = -*x;
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn small(thermostat: Thermostat) -> SimulationSpec {
+        SimulationSpec {
+            kinds: vec![Species::ReducedLJ],
+            counts: vec![256],
+            density: 0.8442,
+            temperature: 1.44,
+            timestep: 0.005,
+            cutoff: 2.5,
+            skin: 0.3,
+            potential: PotentialMode::TruncatedShifted,
+            tail_correction: false,
+            thermostat,
+            seed: 7,
+        }
+    }
+
+    const THERMOSTATS: [Thermostat; 3] = [
+        Thermostat::None,
+        Thermostat::StochasticRescale {
+            target: 1.2,
+            tau: 0.5,
+        },
+        Thermostat::Langevin {
+            target: 1.2,
+            gamma: 1.0,
+        },
+    ];
+
+    #[test]
+    fn timing_the_stages_changes_no_bit() {
+        for thermostat in THERMOSTATS {
+            let mut plain = Simulation::new(small(thermostat)).unwrap();
+            let mut timed = Simulation::new(small(thermostat)).unwrap();
+            timed.time_stages(true);
+            plain.run(60).unwrap();
+            timed.run(60).unwrap();
+            assert_eq!(plain.state(), timed.state(), "{thermostat:?}");
+            assert_eq!(plain.observe(), timed.observe(), "{thermostat:?}");
+            assert_eq!(*plain.stage_times(), StageTimes::default());
+        }
+    }
+
+    #[test]
+    fn each_integrator_runs_its_stages() {
+        let steps = 40;
+        for thermostat in THERMOSTATS {
+            let mut sim = Simulation::new(small(thermostat)).unwrap();
+            let builds = sim.list_builds();
+            sim.time_stages(true);
+            sim.run(steps).unwrap();
+            sim.time_stages(false);
+            sim.run(5).unwrap();
+            let t = sim.stage_times();
+            let (drifts, o_steps, rescales) = match thermostat {
+                Thermostat::None => (steps, 0, 0),
+                Thermostat::StochasticRescale { .. } => (steps, 0, 2 * steps),
+                Thermostat::Langevin { .. } => (2 * steps, steps, 0),
+            };
+            assert_eq!(t.steps, steps, "{thermostat:?}");
+            assert_eq!(t.kick.calls, 2 * steps, "{thermostat:?}");
+            assert_eq!(t.drift.calls, drifts, "{thermostat:?}");
+            assert_eq!(t.langevin.calls, o_steps, "{thermostat:?}");
+            assert_eq!(t.rescale.calls, rescales, "{thermostat:?}");
+            assert_eq!(t.skin_check.calls, steps, "{thermostat:?}");
+            assert_eq!(t.forces.calls, steps, "{thermostat:?}");
+            assert!(
+                t.list_build.calls >= 1,
+                "{thermostat:?}: the list should be rebuilt in 40 steps"
+            );
+            assert!(t.list_build.calls <= sim.list_builds() - builds, "{thermostat:?}");
+            assert!(t.step_seconds >= t.forces.seconds && t.forces.seconds > 0.0);
+            sim.reset_stage_times();
+            assert_eq!(*sim.stage_times(), StageTimes::default());
         }
     }
 }
