@@ -24,7 +24,8 @@
 
 use noblescope::physics::PotentialMode;
 use noblescope::physics::forces::{self, ForceScratch};
-use noblescope::physics::neighbours::{NeighbourList, separation};
+use noblescope::physics::geometry::separation;
+use noblescope::physics::neighbours::NeighbourList;
 use noblescope::physics::potential::PairTable;
 use proptest::prelude::*;
 use std::collections::BTreeSet;

@@ -1,7 +1,7 @@
 //! The radial distribution function g(r), accumulated over configurations.
 
 use crate::physics::Simulation;
-use crate::physics::neighbours::separation;
+use crate::physics::geometry::separation;
 use std::f64::consts::PI;
 
 /// A histogram of pair distances normalised to g(r): the ratio of the pair density at distance

@@ -117,7 +117,7 @@ pub enum Cmd {
         /// Write the results as JSON here too.
         #[arg(long)]
         json: Option<PathBuf>,
-        /// Also time the neighbour-list build and the force loop alone.
+        /// Also time each stage (kick, drift, skin check, list build, forces) over normal steps.
         #[arg(long)]
         stages: bool,
     },

@@ -253,7 +253,7 @@ fn bench(
     output::bench_scaling(&results);
     if stages {
         for &a in atoms {
-            output::bench_stages(&bench::measure_stages(a, 10));
+            output::bench_stages(&bench::measure_stages(a, steps));
         }
     }
     if let Some(path) = json {

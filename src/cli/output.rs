@@ -1,6 +1,6 @@
 //! What the command line prints: the run report, the tuning tables and the bench table.
 
-use noblescope::engine::bench::{BenchResult, StageTimes};
+use noblescope::engine::bench::{BenchResult, StageReport};
 use noblescope::engine::tuning::{FLUCTUATION_LIMIT, TuneInput, TuningReport};
 use noblescope::io::Setup;
 use noblescope::io::setup::Length;
@@ -164,16 +164,27 @@ pub fn bench_scaling(results: &[BenchResult]) {
     }
 }
 
-/// The stage times of one size (`bench --stages`).
-pub fn bench_stages(s: &StageTimes) {
-    let per_atom = |seconds: f64| seconds * 1e9 / s.atoms as f64;
+/// The stage times of one size (`bench --stages`): one line per stage that ran, then the whole
+/// step (the difference is the step's own bookkeeping).
+pub fn bench_stages(r: &StageReport) {
     println!(
-        "stages at {} atoms: list build {:.2} ms ({:.1} ns/atom), forces {:.2} ms ({:.1} ns/atom, {:.1} pairs/atom)",
-        s.atoms,
-        s.build_seconds * 1e3,
-        per_atom(s.build_seconds),
-        s.force_seconds * 1e3,
-        per_atom(s.force_seconds),
-        s.pairs_per_atom
+        "stages at {} atoms, {} steps, {} list builds, {:.1} pairs/atom:",
+        r.atoms, r.steps, r.list_builds, r.pairs_per_atom
+    );
+    for (stage, t) in r.times.stages().filter(|(_, t)| t.calls > 0) {
+        println!(
+            "  {:<18} {:>9.3} ms/step {:>8.2} ns/atom-step {:>6} calls {:>9.3} ms/call",
+            stage.name(),
+            r.seconds_per_step(stage) * 1e3,
+            r.nanoseconds_per_atom_step(stage),
+            t.calls,
+            t.seconds_per_call() * 1e3
+        );
+    }
+    println!(
+        "  {:<18} {:>9.3} ms/step {:>8.2} ns/atom-step",
+        "whole step",
+        r.step_seconds() * 1e3,
+        r.step_seconds() * 1e9 / r.atoms as f64
     );
 }

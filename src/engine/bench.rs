@@ -1,7 +1,7 @@
 //! The standard benchmark: reduced LJ liquid, ρ* = 0.8442, T* = 1.44 start, r_c = 2.5 σ,
 //! skin 0.3 σ, truncated and shifted, NVE, dt* = 0.005.
 
-use crate::physics::{PotentialMode, Simulation, SimulationSpec, Species, Thermostat};
+use crate::physics::{PotentialMode, Simulation, SimulationSpec, Species, Stage, StageTimes, Thermostat};
 use serde::Serialize;
 use std::time::Instant;
 
@@ -71,36 +71,55 @@ pub fn measure(atoms: usize, warmup: u64, steps: u64) -> BenchResult {
     }
 }
 
-/// Time per call of the two expensive stages, measured alone on the standard liquid.
+/// Stage times of normal steps on the standard liquid (see [`measure_stages`]).
 #[derive(Clone, Debug, Serialize)]
-pub struct StageTimes {
+pub struct StageReport {
     pub atoms: usize,
-    /// Seconds per neighbour-list build.
-    pub build_seconds: f64,
-    /// Seconds per force evaluation.
-    pub force_seconds: f64,
-    /// Stored pairs per atom.
+    /// Steps timed.
+    pub steps: u64,
+    pub threads: usize,
+    /// Neighbour-list builds during the timed steps.
+    pub list_builds: u64,
+    /// Stored pairs per atom after the last step.
     pub pairs_per_atom: f64,
+    /// What the simulation's stage timers accumulated over the timed steps.
+    pub times: StageTimes,
 }
 
-/// Times `repeats` list builds and force evaluations on a melted standard liquid.
-pub fn measure_stages(atoms: usize, repeats: u32) -> StageTimes {
+impl StageReport {
+    /// Seconds per step spent in `stage` (its total over the timed steps, divided by them).
+    pub fn seconds_per_step(&self, stage: Stage) -> f64 {
+        self.times.get(stage).seconds / self.steps.max(1) as f64
+    }
+
+    /// Nanoseconds per atom and step spent in `stage`.
+    pub fn nanoseconds_per_atom_step(&self, stage: Stage) -> f64 {
+        self.seconds_per_step(stage) * 1e9 / self.atoms as f64
+    }
+
+    /// Seconds per whole step, stages and bookkeeping.
+    pub fn step_seconds(&self) -> f64 {
+        self.times.step_seconds / self.steps.max(1) as f64
+    }
+}
+
+/// Untimed steps before [`measure_stages`] times: the fcc start has melted by then.
+const STAGE_WARMUP: u64 = 50;
+
+/// Takes `steps` normal steps of the melted standard liquid with the stage timers on.
+pub fn measure_stages(atoms: usize, steps: u64) -> StageReport {
     let mut sim = Simulation::new(standard_liquid(atoms)).expect("the benchmark spec is valid");
-    sim.run(50).expect("the benchmark liquid is stable");
-    let t = Instant::now();
-    for _ in 0..repeats {
-        sim.refresh_list_only();
-    }
-    let build_seconds = t.elapsed().as_secs_f64() / repeats as f64;
-    let t = Instant::now();
-    for _ in 0..repeats {
-        sim.refresh_forces_only();
-    }
-    let force_seconds = t.elapsed().as_secs_f64() / repeats as f64;
-    StageTimes {
+    sim.run(STAGE_WARMUP).expect("the benchmark liquid is stable");
+    let builds0 = sim.list_builds();
+    sim.time_stages(true);
+    sim.run(steps).expect("the benchmark liquid is stable");
+    sim.time_stages(false);
+    StageReport {
         atoms,
-        build_seconds,
-        force_seconds,
+        steps,
+        threads: rayon::current_num_threads(),
+        list_builds: sim.list_builds() - builds0,
         pairs_per_atom: sim.neighbour_list().pairs() as f64 / atoms as f64,
+        times: *sim.stage_times(),
     }
 }

@@ -1,6 +1,7 @@
 //! Lennard-Jones forces, potential energy and virial over the half neighbour list.
 
-use super::neighbours::{NeighbourList, nearest_integer, separation};
+use super::geometry::{nearest_integer, separation};
+use super::neighbours::NeighbourList;
 use super::parallel::{ELEMENTWISE_TASK, SharedMut};
 use super::potential::{PairTable, PotentialMode};
 use rayon::prelude::*;

@@ -1,6 +1,7 @@
 //! Pure numerics of the model, in reduced units. Knows nothing of threads, files or windows.
 
 pub mod forces;
+pub mod geometry;
 pub mod lattice;
 pub mod neighbours;
 pub mod observables;
@@ -9,6 +10,8 @@ pub mod potential;
 pub mod random;
 pub mod simulation;
 pub mod species;
+pub mod stage_clock;
+pub mod stages;
 pub mod system;
 pub mod thermostat;
 pub mod units;
@@ -17,6 +20,7 @@ pub use observables::Observables;
 pub use potential::PotentialMode;
 pub use simulation::{Blowup, Simulation, SimulationSpec, SimulationState, SpecError};
 pub use species::Species;
+pub use stage_clock::{Stage, StageClock, StageTime, StageTimes};
 pub use system::System;
 pub use thermostat::Thermostat;
 pub use units::UnitSystem;

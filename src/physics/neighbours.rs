@@ -7,6 +7,7 @@
 //! s ≡ 0, 1, 2 (mod 3) in three phases: within a phase no two slabs write the same atom, and the
 //! order of additions into every atom is fixed by geometry alone, never by the thread count.
 
+use super::geometry::{fold, separation};
 use super::parallel::{ELEMENTWISE_TASK, SharedMut};
 use rayon::prelude::*;
 
@@ -74,28 +75,6 @@ const HALF_SHELL: [[i32; 3]; 13] = [
     [0, 1, -1],
     [0, 0, 1],
 ];
-
-/// Nearest integer for |t| < 2⁵¹ without a libm call (round-half-even via the FPU).
-#[inline(always)]
-pub fn nearest_integer(t: f64) -> f64 {
-    const MAGIC: f64 = 6_755_399_441_055_744.0; // 1.5 · 2⁵²
-    (t + MAGIC) - MAGIC
-}
-
-/// Minimum-image squared distance and separation vector r_i − r_j.
-#[inline(always)]
-pub fn separation(a: &[f64; 3], b: &[f64; 3], l: f64, inv_l: f64) -> ([f64; 3], f64) {
-    let mut d = [a[0] - b[0], a[1] - b[1], a[2] - b[2]];
-    for x in d.iter_mut() {
-        *x -= l * nearest_integer(*x * inv_l);
-    }
-    (d, d[0] * d[0] + d[1] * d[1] + d[2] * d[2])
-}
-
-#[inline]
-fn fold(x: f64, l: f64) -> f64 {
-    x - l * (x / l).floor()
-}
 
 /// Bin of a folded coordinate among `n` equal bins of [0, l).
 #[inline]
@@ -514,12 +493,5 @@ mod tests {
         counting_sort(5, 3, |i| keys[i], &mut s, &mut it);
         assert_eq!(s, vec![0, 2, 3, 5]);
         assert_eq!(it, vec![1, 4, 2, 0, 3]);
-    }
-
-    #[test]
-    fn nearest_integer_rounds() {
-        for &(t, r) in &[(0.4, 0.0), (0.6, 1.0), (-0.6, -1.0), (-2.4, -2.0), (7.51, 8.0)] {
-            assert_eq!(nearest_integer(t), r);
-        }
     }
 }

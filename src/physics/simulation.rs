@@ -1,19 +1,23 @@
-//! One simulation: the step pipeline (neighbours → forces → integrate) and its bookkeeping.
+//! One simulation: the step as a pipeline of named stages, and its bookkeeping.
 //!
 //! [`Simulation`] knows nothing of threads, files or windows: it is built from a
 //! [`SimulationSpec`] in reduced units, advanced with [`Simulation::step`], measured with
 //! [`Simulation::observe`], and saved or restored through [`SimulationState`].
+//!
+//! A step is composed of the stages of [`Stage`] (kernels in [`super::stages`],
+//! [`super::neighbours`] and [`super::forces`]), in the order of the textbook algorithm of each
+//! integrator; [`Simulation::time_stages`] times them.
 
 use super::forces::{self, ForceScratch, ForceSums};
 use super::lattice;
 use super::neighbours::NeighbourList;
 use super::observables::Observables;
-use super::parallel::ELEMENTWISE_TASK;
 use super::potential::{PairTable, PotentialMode};
-use super::random::{Purpose, Stream};
 use super::species::Species;
+use super::stage_clock::{Stage, StageClock, StageTimes};
+use super::stages::{self, LangevinO, RescaleHalf};
 use super::system::System;
-use super::thermostat::{self, Thermostat};
+use super::thermostat::Thermostat;
 use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 
@@ -200,6 +204,7 @@ pub struct Simulation {
     drift_scale: f64,
     tail_energy: f64,
     tail_pressure: f64,
+    clock: StageClock,
 }
 
 impl Simulation {
@@ -227,8 +232,8 @@ impl Simulation {
             masses,
         };
         let mut sim = Self::assemble(spec, system);
-        sim.list.build(&sim.system.positions, l);
-        sim.compute_forces();
+        sim.build_list();
+        sim.forces();
         sim.rebase_drift();
         Ok(sim)
     }
@@ -272,7 +277,7 @@ impl Simulation {
         sim.heat = state.heat;
         sim.drift_origin = state.drift_origin;
         sim.drift_scale = state.drift_scale;
-        sim.compute_forces();
+        sim.forces();
         Ok(sim)
     }
 
@@ -293,6 +298,7 @@ impl Simulation {
             drift_scale: 1.0,
             tail_energy: 0.0,
             tail_pressure: 0.0,
+            clock: StageClock::default(),
         };
         sim.update_tails();
         sim
@@ -425,58 +431,70 @@ impl Simulation {
         self.table = self.spec.pair_table();
         let builds = self.list.builds();
         self.list = NeighbourList::new(cutoff, skin);
-        self.list.build(&self.system.positions, self.system.box_length);
+        self.build_list();
         self.list.set_builds(builds + 1);
         self.update_tails();
-        self.compute_forces();
+        self.forces();
         self.rebase_drift();
         Ok(())
     }
 
     /// Rebuilds the neighbour list and recomputes forces at the present positions.
     pub fn refresh(&mut self) {
-        self.list.build(&self.system.positions, self.system.box_length);
-        self.compute_forces();
+        self.build_list();
+        self.forces();
     }
 
-    /// Rebuilds only the neighbour list (benchmarking a stage alone).
-    pub fn refresh_list_only(&mut self) {
-        self.list.build(&self.system.positions, self.system.box_length);
+    /// Switches the per-stage timers on or off (off at the start). While off they cost a
+    /// branch per stage and read no clock; what they accumulated is kept either way.
+    pub fn time_stages(&mut self, on: bool) {
+        self.clock.set_on(on);
     }
 
-    /// Recomputes only the forces (benchmarking a stage alone).
-    pub fn refresh_forces_only(&mut self) {
-        self.compute_forces();
+    /// Time spent in each stage (and in whole steps) while the timers were on.
+    pub fn stage_times(&self) -> &StageTimes {
+        self.clock.times()
     }
 
-    fn compute_forces(&mut self) {
-        let s = &mut self.system;
-        self.sums = forces::compute(
-            &s.positions,
-            &s.types,
-            s.box_length,
-            &self.table,
-            &self.list,
-            &mut s.forces,
-            &mut self.scratch,
-        );
+    /// Forgets the accumulated stage times.
+    pub fn reset_stage_times(&mut self) {
+        self.clock.reset();
     }
 
     /// Advances one timestep.
+    ///
+    /// - NVE: velocity Verlet, B A [rebuild, forces] B.
+    /// - Stochastic rescaling (Bussi et al. 2007): a rescale half-step, velocity Verlet, a
+    ///   rescale half-step.
+    /// - Langevin: BAOAB, B A O A [rebuild, forces] B.
+    ///
+    /// B is a half kick, A a drift, O the exact friction-and-noise step; "rebuild" rebuilds the
+    /// neighbour list if some atom moved more than half the skin since the last build.
     pub fn step(&mut self) -> Result<(), Blowup> {
+        let start = self.clock.step_started();
         let dt = self.spec.timestep;
         match self.spec.thermostat {
-            Thermostat::None => self.verlet_step(dt),
+            Thermostat::None => self.velocity_verlet(dt),
             Thermostat::StochasticRescale { target, tau } => {
                 self.rescale_half(target, tau, 0.5 * dt, 0);
-                self.verlet_step(dt);
+                self.velocity_verlet(dt);
                 self.rescale_half(target, tau, 0.5 * dt, 1);
             }
-            Thermostat::Langevin { target, gamma } => self.baoab_step(dt, target, gamma),
+            Thermostat::Langevin { target, gamma } => {
+                self.kick(0.5 * dt);
+                self.drift(0.5 * dt);
+                self.langevin_o(dt, target, gamma);
+                self.drift(0.5 * dt);
+                self.rebuild_if_needed();
+                self.forces();
+                self.kick(0.5 * dt);
+            }
         }
         self.step += 1;
         self.time += dt;
-        self.check_finite()
+        let checked = self.check_finite();
+        self.clock.step_ended(start);
+        checked
     }
 
     /// Advances `n` steps, stopping at the first blow-up.
@@ -487,96 +505,97 @@ impl Simulation {
         Ok(())
     }
 
-    fn verlet_step(&mut self, dt: f64) {
+    /// Velocity Verlet: B A [rebuild, forces] B.
+    fn velocity_verlet(&mut self, dt: f64) {
         self.kick(0.5 * dt);
         self.drift(dt);
-        self.after_drift();
+        self.rebuild_if_needed();
+        self.forces();
         self.kick(0.5 * dt);
     }
 
-    /// BAOAB: half kick, half drift, exact friction-and-noise step, half drift, forces, half kick.
-    fn baoab_step(&mut self, dt: f64, target: f64, gamma: f64) {
-        self.kick(0.5 * dt);
-        self.drift(0.5 * dt);
-        let before = self.system.kinetic_energy();
-        let c1 = (-gamma * dt).exp();
-        let noise = (1.0 - c1 * c1).sqrt();
-        let (seed, step) = (self.spec.seed, self.step);
-        let s = &mut self.system;
-        let masses = &s.masses;
-        s.velocities
-            .par_iter_mut()
-            .zip(s.types.par_iter())
-            .enumerate()
-            .with_min_len(ELEMENTWISE_TASK / 8)
-            .for_each(|(i, (v, &t))| {
-                let mut rng = Stream::new(seed, Purpose::Langevin, step, i as u64);
-                let w = noise * (target / masses[t as usize]).sqrt();
-                for x in v.iter_mut() {
-                    *x = c1 * *x + w * rng.normal();
-                }
-            });
-        self.heat += self.system.kinetic_energy() - before;
-        self.drift(0.5 * dt);
-        self.after_drift();
-        self.kick(0.5 * dt);
-    }
+    // The stages, each timed by the stage clock when it is on.
 
-    fn rescale_half(&mut self, target: f64, tau: f64, dt: f64, half: u64) {
-        let k = self.system.kinetic_energy();
-        if k <= 0.0 {
-            return;
-        }
-        let dof = self.spec.degrees_of_freedom();
-        let mut rng = thermostat::rescale_stream(self.spec.seed, self.step, half);
-        let k_new = thermostat::rescaled_kinetic(k, 0.5 * dof * target, dof, dt, tau, &mut rng).max(0.0);
-        let alpha = (k_new / k).sqrt();
-        self.system
-            .velocities
-            .par_iter_mut()
-            .with_min_len(ELEMENTWISE_TASK)
-            .for_each(|v| {
-                for x in v.iter_mut() {
-                    *x *= alpha;
-                }
-            });
-        self.heat += k_new - k;
-    }
-
+    /// B: v ← v + h F/m.
     fn kick(&mut self, h: f64) {
         let s = &mut self.system;
-        let masses = &s.masses;
-        s.velocities
-            .par_iter_mut()
-            .zip(s.forces.par_iter())
-            .zip(s.types.par_iter())
-            .with_min_len(ELEMENTWISE_TASK)
-            .for_each(|((v, f), &t)| {
-                let a = h / masses[t as usize];
-                v[0] += a * f[0];
-                v[1] += a * f[1];
-                v[2] += a * f[2];
-            });
+        self.clock.time(Stage::Kick, || {
+            stages::kick(&mut s.velocities, &s.forces, &s.types, &s.masses, h)
+        });
     }
 
+    /// A: x ← x + h v.
     fn drift(&mut self, h: f64) {
         let s = &mut self.system;
-        s.positions
-            .par_iter_mut()
-            .zip(s.velocities.par_iter())
-            .with_min_len(ELEMENTWISE_TASK)
-            .for_each(|(x, v)| {
-                x[0] += h * v[0];
-                x[1] += h * v[1];
-                x[2] += h * v[2];
-            });
+        self.clock
+            .time(Stage::Drift, || stages::drift(&mut s.positions, &s.velocities, h));
     }
 
-    fn after_drift(&mut self) {
-        if self.list.needs_rebuild(&self.system.positions) {
-            self.list.build(&self.system.positions, self.system.box_length);
+    /// The skin check, then a list build if it asks for one.
+    fn rebuild_if_needed(&mut self) {
+        let (list, positions) = (&self.list, &self.system.positions);
+        let stale = self
+            .clock
+            .time(Stage::SkinCheck, || list.needs_rebuild(positions));
+        if stale {
+            self.build_list();
         }
-        self.compute_forces();
+    }
+
+    /// Builds the neighbour list from the present positions.
+    fn build_list(&mut self) {
+        let (list, s) = (&mut self.list, &self.system);
+        self.clock
+            .time(Stage::ListBuild, || list.build(&s.positions, s.box_length));
+    }
+
+    /// Forces, potential energy and virial at the present positions.
+    fn forces(&mut self) {
+        let s = &mut self.system;
+        let (table, list, scratch) = (&self.table, &self.list, &mut self.scratch);
+        self.sums = self.clock.time(Stage::Forces, || {
+            forces::compute(
+                &s.positions,
+                &s.types,
+                s.box_length,
+                table,
+                list,
+                &mut s.forces,
+                scratch,
+            )
+        });
+    }
+
+    /// O: exact friction and noise over `dt`.
+    fn langevin_o(&mut self, dt: f64, target: f64, gamma: f64) {
+        let o = LangevinO {
+            dt,
+            gamma,
+            target,
+            seed: self.spec.seed,
+            step: self.step,
+        };
+        let (s, heat) = (&mut self.system, &mut self.heat);
+        self.clock.time(Stage::Langevin, || {
+            stages::langevin_o(&mut s.velocities, &s.types, &s.masses, &o, heat)
+        });
+    }
+
+    /// One stochastic rescaling half-step (`half` 0 before velocity Verlet, 1 after).
+    fn rescale_half(&mut self, target: f64, tau: f64, dt: f64, half: u64) {
+        let r = RescaleHalf {
+            dt,
+            tau,
+            target,
+            dof: self.spec.degrees_of_freedom(),
+            seed: self.spec.seed,
+            step: self.step,
+            half,
+        };
+        let (s, heat) = (&mut self.system, &mut self.heat);
+        self.clock.time(Stage::Rescale, || {
+            stages::rescale_half(&mut s.velocities, &s.types, &s.masses, &r, heat)
+        });
     }
 
     fn check_finite(&self) -> Result<(), Blowup> {
@@ -666,6 +685,87 @@ pub fn reverse_velocities(system: &mut System) {
     for v in &mut system.velocities {
         for x in v.iter_mut() {
             *x = -*x;
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn small(thermostat: Thermostat) -> SimulationSpec {
+        SimulationSpec {
+            kinds: vec![Species::ReducedLJ],
+            counts: vec![256],
+            density: 0.8442,
+            temperature: 1.44,
+            timestep: 0.005,
+            cutoff: 2.5,
+            skin: 0.3,
+            potential: PotentialMode::TruncatedShifted,
+            tail_correction: false,
+            thermostat,
+            seed: 7,
+        }
+    }
+
+    const THERMOSTATS: [Thermostat; 3] = [
+        Thermostat::None,
+        Thermostat::StochasticRescale {
+            target: 1.2,
+            tau: 0.5,
+        },
+        Thermostat::Langevin {
+            target: 1.2,
+            gamma: 1.0,
+        },
+    ];
+
+    #[test]
+    fn timing_the_stages_changes_no_bit() {
+        for thermostat in THERMOSTATS {
+            let mut plain = Simulation::new(small(thermostat)).unwrap();
+            let mut timed = Simulation::new(small(thermostat)).unwrap();
+            timed.time_stages(true);
+            plain.run(60).unwrap();
+            timed.run(60).unwrap();
+            assert_eq!(plain.state(), timed.state(), "{thermostat:?}");
+            assert_eq!(plain.observe(), timed.observe(), "{thermostat:?}");
+            assert_eq!(*plain.stage_times(), StageTimes::default());
+        }
+    }
+
+    #[test]
+    fn each_integrator_runs_its_stages() {
+        let steps = 40;
+        for thermostat in THERMOSTATS {
+            let mut sim = Simulation::new(small(thermostat)).unwrap();
+            let builds = sim.list_builds();
+            sim.time_stages(true);
+            sim.run(steps).unwrap();
+            sim.time_stages(false);
+            sim.run(5).unwrap();
+            let t = sim.stage_times();
+            let (drifts, o_steps, rescales) = match thermostat {
+                Thermostat::None => (steps, 0, 0),
+                Thermostat::StochasticRescale { .. } => (steps, 0, 2 * steps),
+                Thermostat::Langevin { .. } => (2 * steps, steps, 0),
+            };
+            assert_eq!(t.steps, steps, "{thermostat:?}");
+            assert_eq!(t.kick.calls, 2 * steps, "{thermostat:?}");
+            assert_eq!(t.drift.calls, drifts, "{thermostat:?}");
+            assert_eq!(t.langevin.calls, o_steps, "{thermostat:?}");
+            assert_eq!(t.rescale.calls, rescales, "{thermostat:?}");
+            assert_eq!(t.skin_check.calls, steps, "{thermostat:?}");
+            assert_eq!(t.forces.calls, steps, "{thermostat:?}");
+            assert!(
+                t.list_build.calls >= 1,
+                "{thermostat:?}: the list should be rebuilt in 40 steps"
+            );
+            assert!(t.list_build.calls <= sim.list_builds() - builds, "{thermostat:?}");
+            assert!(t.step_seconds >= t.forces.seconds && t.forces.seconds > 0.0);
+            sim.reset_stage_times();
+            assert_eq!(*sim.stage_times(), StageTimes::default());
         }
     }
 }

@@ -1,5 +1,7 @@
 //! The state of the atoms: structure-of-arrays positions, velocities, forces and species.
 
+use super::geometry::fold;
+use super::parallel::ordered_sum;
 use super::species::Species;
 
 /// Atoms in a cubic periodic box, in reduced units.
@@ -73,23 +75,31 @@ impl System {
     /// Kinetic energy of atom `i`.
     #[inline]
     pub fn kinetic_of(&self, i: usize) -> f64 {
-        let v = self.velocities[i];
-        0.5 * self.mass(i) * (v[0] * v[0] + v[1] * v[1] + v[2] * v[2])
+        kinetic_of(&self.velocities, &self.types, &self.masses, i)
     }
 
     /// Total kinetic energy, summed in fixed chunks so the result does not depend on threads.
     pub fn kinetic_energy(&self) -> f64 {
-        crate::physics::parallel::ordered_sum(self.len(), |i| self.kinetic_of(i))
+        kinetic_energy(&self.velocities, &self.types, &self.masses)
     }
 
     /// Position of atom `i` folded into the primary box [0, L)³.
     pub fn wrapped(&self, i: usize) -> [f64; 3] {
         let l = self.box_length;
         let p = self.positions[i];
-        [
-            p[0] - l * (p[0] / l).floor(),
-            p[1] - l * (p[1] / l).floor(),
-            p[2] - l * (p[2] / l).floor(),
-        ]
+        [fold(p[0], l), fold(p[1], l), fold(p[2], l)]
     }
+}
+
+/// Kinetic energy ½ m v² of atom `i`, over the arrays of a [`System`].
+#[inline]
+pub fn kinetic_of(velocities: &[[f64; 3]], types: &[u8], masses: &[f64], i: usize) -> f64 {
+    let v = velocities[i];
+    0.5 * masses[types[i] as usize] * (v[0] * v[0] + v[1] * v[1] + v[2] * v[2])
+}
+
+/// Total kinetic energy over the arrays of a [`System`], summed in fixed chunks so the result
+/// does not depend on threads (the step's stages use this on the slices they hold).
+pub fn kinetic_energy(velocities: &[[f64; 3]], types: &[u8], masses: &[f64]) -> f64 {
+    ordered_sum(velocities.len(), |i| kinetic_of(velocities, types, masses, i))
 }

@@ -1,4 +1,5 @@
-//! Thermostats: stochastic velocity rescaling and the Langevin friction step.
+//! Thermostats: the kinds, and the stochastic-rescaling draw with its random stream (the thermostat
+//! stages that apply them, the rescale half-step and the Langevin O-step, are in [`super::stages`]).
 
 use super::random::{Purpose, Stream};
 use serde::{Deserialize, Serialize};
