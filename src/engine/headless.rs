@@ -6,11 +6,11 @@ use super::watchdog::Alarm;
 use crate::analysis::RadialDistribution;
 use crate::io::energy_log::EnergyLog;
 use crate::io::rdf_csv::rdf_csv;
+use crate::io::run_folder::{self, FolderError, StagedRun};
 use crate::io::summary::{RunFacts, Summary};
 use crate::io::trajectory;
 use crate::physics::Observables;
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
-use std::fs::File;
 use std::io::{BufWriter, IsTerminal, Write};
 use std::path::{Path, PathBuf};
 use std::time::Instant;
@@ -49,25 +49,29 @@ pub const OUTPUT_FILES: [&str; 5] = [
     "rdf.csv",
 ];
 
-/// Checks that `out` can take a run without destroying an earlier one.
+/// Checks that `out` can take a run without destroying an earlier one or anything else (see
+/// [`run_folder::check`]); changes nothing.
 pub fn check_output_dir(out: &Path, overwrite: bool) -> Result<(), RunError> {
-    if out.exists() && !out.is_dir() {
-        return Err(RunError::BadInput(format!(
-            "--out: {} exists and is not a folder; choose a folder",
-            out.display()
-        )));
+    run_folder::check(out, overwrite, &OUTPUT_FILES).map_err(RunError::from)
+}
+
+impl From<FolderError> for RunError {
+    fn from(e: FolderError) -> Self {
+        if e.is_bad_input() {
+            RunError::BadInput(e.to_string())
+        } else {
+            RunError::Failed(e.to_string())
+        }
     }
-    if !overwrite && let Some(f) = OUTPUT_FILES.iter().find(|f| out.join(f).exists()) {
-        return Err(RunError::BadInput(format!(
-            "--out: {} already holds a run ({f}); choose another folder or pass --overwrite",
-            out.display()
-        )));
-    }
-    Ok(())
 }
 
 /// Runs `session` to the end and writes the outputs. `fresh` is false when continuing from a
 /// checkpoint (the starting sample was already logged by the earlier run).
+///
+/// The files are written into a staging folder beside `opts.out` that takes its place when the
+/// run ends ([`StagedRun`]): finished, the folder holds the whole run; stopped by a blow-up, it
+/// holds the energy log (and trajectory) up to the alarm and the error says so; failed
+/// otherwise (a write error) or killed, the earlier contents of `opts.out` stay as they were.
 pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<Summary, RunError> {
     let setup = session.setup().clone();
     let until = opts.until_step.unwrap_or(setup.steps);
@@ -77,16 +81,16 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
             "--steps: {until} is not past the saved step {start_step}; allowed: more than {start_step}"
         )));
     }
-    check_output_dir(&opts.out, opts.overwrite)?;
-    std::fs::create_dir_all(&opts.out)
-        .map_err(|e| RunError::BadInput(format!("--out: cannot create {}: {e}", opts.out.display())))?;
+    let staged = StagedRun::begin(&opts.out, opts.overwrite, &OUTPUT_FILES)?;
     let io_err = |what: &str, e: std::io::Error| RunError::Failed(format!("writing {what}: {e}"));
     let units = session.units();
-    let csv = File::create(opts.out.join("energy.csv")).map_err(|e| io_err("energy.csv", e))?;
+    let csv = staged.create("energy.csv").map_err(|e| io_err("energy.csv", e))?;
     let mut log = EnergyLog::new(BufWriter::new(csv), units).map_err(|e| io_err("energy.csv", e))?;
     let mut traj = match setup.trajectory_every {
         Some(_) => Some(BufWriter::new(
-            File::create(opts.out.join("trajectory.xyz")).map_err(|e| io_err("trajectory.xyz", e))?,
+            staged
+                .create("trajectory.xyz")
+                .map_err(|e| io_err("trajectory.xyz", e))?,
         )),
         None => None,
     };
@@ -151,18 +155,26 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
     if let Some(t) = traj.as_mut() {
         t.flush().map_err(|e| io_err("trajectory.xyz", e))?;
     }
+    drop(traj);
     if let Some(f) = failure {
-        return Err(RunError::Failed(f));
+        let out = staged.commit()?;
+        return Err(RunError::Failed(format!(
+            "{f} {} holds the energy log up to the blow-up; no summary or checkpoint was written.",
+            out.display()
+        )));
     }
     for w in &warnings {
         eprintln!("warning: {w}");
     }
     if let Some(g) = &rdf {
-        std::fs::write(opts.out.join("rdf.csv"), rdf_csv(g, &units)).map_err(|e| io_err("rdf.csv", e))?;
+        staged
+            .create("rdf.csv")
+            .and_then(|mut f| f.write_all(rdf_csv(g, &units).as_bytes()))
+            .map_err(|e| io_err("rdf.csv", e))?;
     }
     session
         .checkpoint()
-        .save(&opts.out.join("final.checkpoint"))
+        .save(&staged.path().join("final.checkpoint"))
         .map_err(|e| RunError::Failed(e.to_string()))?;
     let sim = session.simulation();
     let summary = Summary::new(
@@ -181,8 +193,11 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
             threads: opts.threads,
         },
     );
-    std::fs::write(opts.out.join("summary.json"), summary.to_json())
+    staged
+        .create("summary.json")
+        .and_then(|mut f| f.write_all(summary.to_json().as_bytes()))
         .map_err(|e| io_err("summary.json", e))?;
+    staged.commit()?;
     Ok(summary)
 }
 

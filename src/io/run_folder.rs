@@ -1,22 +1,24 @@
 //! The output folder of a headless run, written so that it always holds exactly one run.
 //!
 //! A run writes into a staging folder beside the output folder (`.NAME.staging-PID`, in the same
-//! parent, so on the same file system) and, when it ends (finished, or stopped by an alarm),
-//! the staging folder takes the output folder's place in one step: on Linux by exchanging the
-//! two names atomically (`renameat2` with `RENAME_EXCHANGE`), elsewhere, or where the file
-//! system cannot exchange, by two renames with the old folder parked as `.NAME.replaced-PID`
-//! in between. So:
-//! - a run that fails or is killed leaves the earlier run in the output folder untouched;
+//! parent, so on the same file system). When it ends (finished, or stopped by an alarm) its
+//! files are renamed into the output folder, each replacing the earlier run's file of the same
+//! name in one step, and the earlier run's other files are removed; files that are not a run's
+//! (the user's notes, plots) stay. A folder that did not exist is the staging folder renamed.
+//! So:
+//! - a run that fails or is killed before it ends leaves the earlier run untouched;
 //! - a finished run never shares its folder with another run's files;
-//! - files are created anew in a folder the program made itself, so nothing is written
-//!   through a symbolic link, and an output folder that is a link is refused.
+//! - files are created anew in a folder the program made itself and renamed into place, so
+//!   nothing is written through a symbolic link; an output folder that is a link is refused.
 //!
-//! Leftovers of killed runs (staging folders, a parked old folder, temporary checkpoint files
-//! inside the output folder) are cleaned up by the next run into the same folder; a parked old
-//! folder whose output folder is missing is put back first.
+//! Before the renames begin, a mark (`.committing`) is written into the staging folder. A run
+//! killed during the renames (a few milliseconds) leaves that mark, and the next run into the
+//! same folder finishes the renames first; a staging folder without the mark is a run killed
+//! before it ended and is removed, as are temporary checkpoint files of dead processes inside
+//! the output folder.
 
 use std::fs;
-use std::io;
+use std::io::{self, Write};
 use std::path::{Path, PathBuf};
 
 /// Why a folder cannot take a run. Every variant is bad input (exit code 2) except
@@ -39,12 +41,6 @@ pub enum FolderError {
     /// The folder holds an earlier run and `--overwrite` was not given.
     #[error("--out: {} already holds a run ({file}); choose another folder or pass --overwrite", .path.display())]
     HoldsRun { path: PathBuf, file: String },
-    /// The folder holds files that no run writes; replacing it would lose them.
-    #[error(
-        "--out: {} holds files that are not a run's ({}); choose a new or empty folder, or move them away",
-        .path.display(), .files.join(", ")
-    )]
-    ForeignFiles { path: PathBuf, files: Vec<String> },
     /// The program may not create or replace the folder.
     #[error(
         "--out: cannot write {}: {source}; choose a folder you may write in (its parent folder must be writable too)",
@@ -70,12 +66,13 @@ impl FolderError {
 pub struct StagedRun {
     out: PathBuf,
     staging: PathBuf,
+    run_files: Vec<String>,
     committed: bool,
 }
 
 /// Checks that `out` can take a run whose files are named `run_files`, without changing
-/// anything: it is absent, or an empty folder, or a folder holding only a run's files and
-/// `overwrite` is set; it is not a symbolic link.
+/// anything: it is absent or a folder, not a symbolic link, and holds none of a run's files
+/// unless `overwrite` is set.
 pub fn check(out: &Path, overwrite: bool, run_files: &[&str]) -> Result<(), FolderError> {
     let meta = match fs::symlink_metadata(out) {
         Ok(m) => m,
@@ -98,39 +95,19 @@ pub fn check(out: &Path, overwrite: bool, run_files: &[&str]) -> Result<(), Fold
     if !meta.is_dir() {
         return Err(FolderError::NotAFolder(out.to_path_buf()));
     }
-    let entries = fs::read_dir(out).map_err(|e| FolderError::NotWritable {
-        path: out.to_path_buf(),
-        source: e,
-    })?;
-    let mut found = Vec::new();
-    let mut foreign = Vec::new();
-    for entry in entries {
-        let entry = entry.map_err(|e| FolderError::Io {
-            path: out.to_path_buf(),
-            source: e,
-        })?;
-        let name = entry.file_name().to_string_lossy().into_owned();
-        if run_files.contains(&name.as_str()) {
-            found.push(name);
-        } else if !is_temporary_checkpoint(&name) {
-            foreign.push(name);
-        }
+    if overwrite {
+        return Ok(());
     }
-    foreign.sort();
-    if !foreign.is_empty() {
-        foreign.truncate(5);
-        return Err(FolderError::ForeignFiles {
-            path: out.to_path_buf(),
-            files: foreign,
-        });
-    }
-    // Named in the order the run writes them, whatever order the folder lists them in.
-    match run_files.iter().find(|f| found.iter().any(|n| n == *f)) {
-        Some(file) if !overwrite => Err(FolderError::HoldsRun {
+    // Named in the order the run writes them.
+    match run_files
+        .iter()
+        .find(|f| fs::symlink_metadata(out.join(f)).is_ok())
+    {
+        Some(file) => Err(FolderError::HoldsRun {
             path: out.to_path_buf(),
             file: file.to_string(),
         }),
-        _ => Ok(()),
+        None => Ok(()),
     }
 }
 
@@ -157,11 +134,44 @@ fn process_alive(pid: u32) -> bool {
     pid == std::process::id() || Path::new(&format!("/proc/{pid}")).exists()
 }
 
-/// Removes leftovers of killed runs into `out`; puts a parked old folder back if `out` is
-/// missing.
-fn clean_leftovers(out: &Path) -> Result<(), FolderError> {
+/// The mark a staging folder carries while its files are renamed into place.
+const COMMIT_MARK: &str = ".committing";
+
+/// Renames every file of `staging` (but the mark) into `out`, removes the run files of `out`
+/// that the new run does not have (the mark lists the new run's files, so this holds after a
+/// kill part-way too), then the staging folder. Safe to repeat after a kill.
+fn finish_commit(staging: &Path, out: &Path, run_files: &[&str]) -> Result<(), FolderError> {
+    let io_err = |p: &Path, e| FolderError::Io {
+        path: p.to_path_buf(),
+        source: e,
+    };
+    let mark = staging.join(COMMIT_MARK);
+    let listed = fs::read_to_string(&mark).map_err(|e| io_err(&mark, e))?;
+    let new: Vec<&str> = listed.lines().collect();
+    fs::create_dir_all(out).map_err(|e| FolderError::NotWritable {
+        path: out.to_path_buf(),
+        source: e,
+    })?;
+    for name in &new {
+        let from = staging.join(name);
+        if fs::symlink_metadata(&from).is_ok() {
+            fs::rename(&from, out.join(name)).map_err(|e| io_err(&out.join(name), e))?;
+        }
+    }
+    for f in run_files {
+        let p = out.join(f);
+        if !new.contains(f) && fs::symlink_metadata(&p).is_ok() {
+            fs::remove_file(&p).map_err(|e| io_err(&p, e))?;
+        }
+    }
+    sync_folder(out);
+    fs::remove_dir_all(staging).map_err(|e| io_err(staging, e))
+}
+
+/// Finishes or removes what killed runs into `out` left behind.
+fn clean_leftovers(out: &Path, run_files: &[&str]) -> Result<(), FolderError> {
     let parent = parent_of(out);
-    let name = name_of(out);
+    let prefix = format!(".{}.staging-", name_of(out));
     let io_err = |p: &Path, e| FolderError::Io {
         path: p.to_path_buf(),
         source: e,
@@ -169,26 +179,19 @@ fn clean_leftovers(out: &Path) -> Result<(), FolderError> {
     let Ok(entries) = fs::read_dir(&parent) else {
         return Ok(());
     };
-    let mut parked = Vec::new();
-    let mut stale = Vec::new();
     for entry in entries.flatten() {
         let file = entry.file_name().to_string_lossy().into_owned();
-        for (kind, list) in [("staging", &mut stale), ("replaced", &mut parked)] {
-            let prefix = format!(".{name}.{kind}-");
-            if let Some(pid) = file.strip_prefix(&prefix).and_then(|p| p.parse::<u32>().ok())
-                && !process_alive(pid)
-            {
-                list.push(entry.path());
-            }
+        let Some(pid) = file.strip_prefix(&prefix).and_then(|p| p.parse::<u32>().ok()) else {
+            continue;
+        };
+        if process_alive(pid) {
+            continue;
         }
-    }
-    if !out.exists()
-        && let Some(old) = parked.pop()
-    {
-        fs::rename(&old, out).map_err(|e| io_err(&old, e))?;
-    }
-    for p in stale.into_iter().chain(parked) {
-        fs::remove_dir_all(&p).map_err(|e| io_err(&p, e))?;
+        if entry.path().join(COMMIT_MARK).exists() {
+            finish_commit(&entry.path(), out, run_files)?;
+        } else {
+            fs::remove_dir_all(entry.path()).map_err(|e| io_err(&entry.path(), e))?;
+        }
     }
     if let Ok(entries) = fs::read_dir(out) {
         for entry in entries.flatten() {
@@ -208,7 +211,7 @@ impl StagedRun {
     /// Cleans up after killed runs, checks `out` (see [`check`]) and creates the staging
     /// folder beside it.
     pub fn begin(out: &Path, overwrite: bool, run_files: &[&str]) -> Result<StagedRun, FolderError> {
-        clean_leftovers(out)?;
+        clean_leftovers(out, run_files)?;
         check(out, overwrite, run_files)?;
         let parent = parent_of(out);
         fs::create_dir_all(&parent).map_err(|e| FolderError::NotWritable {
@@ -229,6 +232,7 @@ impl StagedRun {
         Ok(StagedRun {
             out: out.to_path_buf(),
             staging,
+            run_files: run_files.iter().map(|f| f.to_string()).collect(),
             committed: false,
         })
     }
@@ -251,7 +255,8 @@ impl StagedRun {
             .open(self.staging.join(name))
     }
 
-    /// Puts the staged run in place of the output folder, in one step where the system allows.
+    /// Puts the staged run in place: renames the staging folder to the output folder if there
+    /// is none yet, else renames its files into it (see the module's documentation).
     pub fn commit(mut self) -> Result<PathBuf, FolderError> {
         let io_err = |p: &Path, e| FolderError::Io {
             path: p.to_path_buf(),
@@ -260,15 +265,21 @@ impl StagedRun {
         sync_folder(&self.staging);
         if fs::symlink_metadata(&self.out).is_err() {
             fs::rename(&self.staging, &self.out).map_err(|e| io_err(&self.out, e))?;
-        } else if exchange(&self.staging, &self.out).is_ok() {
-            // The staging name now holds the earlier run.
-            fs::remove_dir_all(&self.staging).map_err(|e| io_err(&self.staging, e))?;
         } else {
-            let parked =
-                parent_of(&self.out).join(format!(".{}.replaced-{}", name_of(&self.out), std::process::id()));
-            fs::rename(&self.out, &parked).map_err(|e| io_err(&self.out, e))?;
-            fs::rename(&self.staging, &self.out).map_err(|e| io_err(&self.out, e))?;
-            fs::remove_dir_all(&parked).map_err(|e| io_err(&parked, e))?;
+            // The mark lists the new run's files, so a kill part-way can be finished exactly.
+            let mut names = String::new();
+            for entry in fs::read_dir(&self.staging).map_err(|e| io_err(&self.staging, e))? {
+                let entry = entry.map_err(|e| io_err(&self.staging, e))?;
+                names.push_str(&entry.file_name().to_string_lossy());
+                names.push('\n');
+            }
+            let mark = self.staging.join(COMMIT_MARK);
+            fs::File::create(&mark)
+                .and_then(|mut f| f.write_all(names.as_bytes()).and_then(|()| f.sync_all()))
+                .map_err(|e| io_err(&mark, e))?;
+            sync_folder(&self.staging);
+            let files: Vec<&str> = self.run_files.iter().map(String::as_str).collect();
+            finish_commit(&self.staging, &self.out, &files)?;
         }
         sync_folder(&parent_of(&self.out));
         self.committed = true;
@@ -289,39 +300,6 @@ fn sync_folder(dir: &Path) {
     if let Ok(f) = fs::File::open(dir) {
         let _ = f.sync_all();
     }
-}
-
-/// Swaps the names `a` and `b` atomically (Linux `renameat2(RENAME_EXCHANGE)`).
-#[cfg(target_os = "linux")]
-fn exchange(a: &Path, b: &Path) -> io::Result<()> {
-    use std::ffi::CString;
-    use std::os::unix::ffi::OsStrExt;
-    let ca = CString::new(a.as_os_str().as_bytes())?;
-    let cb = CString::new(b.as_os_str().as_bytes())?;
-    // SAFETY: two valid NUL-terminated paths; the call only renames.
-    let r = unsafe {
-        libc::syscall(
-            libc::SYS_renameat2,
-            libc::AT_FDCWD,
-            ca.as_ptr(),
-            libc::AT_FDCWD,
-            cb.as_ptr(),
-            libc::RENAME_EXCHANGE,
-        )
-    };
-    if r == 0 {
-        Ok(())
-    } else {
-        Err(io::Error::last_os_error())
-    }
-}
-
-#[cfg(not(target_os = "linux"))]
-fn exchange(_: &Path, _: &Path) -> io::Result<()> {
-    Err(io::Error::new(
-        io::ErrorKind::Unsupported,
-        "no atomic exchange here",
-    ))
 }
 
 #[cfg(test)]
@@ -383,21 +361,36 @@ mod tests {
     }
 
     #[test]
-    fn leftovers_of_a_killed_run_are_cleaned_and_a_parked_folder_is_put_back() {
+    fn a_run_killed_during_its_renames_is_finished_by_the_next_and_one_killed_earlier_is_removed() {
         let d = scratch("killed");
         let out = d.join("out");
-        // Killed between the two renames of the fallback: the old run is parked, out missing.
-        write_run(&d.join(".out.replaced-999999999"), "old");
-        fs::create_dir_all(d.join(".out.staging-999999998")).unwrap();
-        check(&out, false, &FILES).unwrap();
-        let staged = StagedRun::begin(&out, true, &FILES).unwrap();
-        assert_eq!(fs::read_to_string(out.join("energy.csv")).unwrap(), "old");
-        assert!(!d.join(".out.staging-999999998").exists());
+        write_run(&out, "old");
+        fs::write(out.join("notes.txt"), "mine").unwrap();
+        // Killed while committing: the mark is there, energy.csv already moved, summary not.
+        let committing = d.join(".out.staging-999999999");
+        fs::create_dir_all(&committing).unwrap();
+        fs::write(committing.join(COMMIT_MARK), "energy.csv\ntrajectory.xyz\n").unwrap();
+        fs::write(out.join("energy.csv"), "new").unwrap();
+        fs::write(committing.join("trajectory.xyz"), "new").unwrap();
+        // Killed mid-run: no mark.
+        let running = d.join(".out.staging-999999998");
+        fs::create_dir_all(&running).unwrap();
+        fs::write(running.join("energy.csv"), "partial").unwrap();
+        let staged = StagedRun::begin(&out, true, &["energy.csv", "summary.json", "trajectory.xyz"]).unwrap();
+        assert!(!committing.exists() && !running.exists());
+        let mut names: Vec<_> = fs::read_dir(&out)
+            .unwrap()
+            .map(|e| e.unwrap().file_name().into_string().unwrap())
+            .collect();
+        names.sort();
+        // The committing run's files, without the old run's summary; the user's notes stay.
+        assert_eq!(names, ["energy.csv", "notes.txt", "trajectory.xyz"]);
+        assert_eq!(fs::read_to_string(out.join("energy.csv")).unwrap(), "new");
         drop(staged);
     }
 
     #[test]
-    fn links_other_files_and_earlier_runs_are_refused_by_name() {
+    fn links_and_earlier_runs_are_refused_by_name_and_other_files_are_kept() {
         let d = scratch("refuse");
         let out = d.join("out");
         write_run(&out, "old");
@@ -407,12 +400,11 @@ mod tests {
             "{e}"
         );
         fs::write(out.join("notes.txt"), "mine").unwrap();
-        let e = check(&out, true, &FILES).unwrap_err();
-        assert!(
-            e.to_string()
-                .contains("holds files that are not a run's (notes.txt)"),
-            "{e}"
-        );
+        let staged = StagedRun::begin(&out, true, &FILES).unwrap();
+        fs::write(staged.path().join("energy.csv"), "new").unwrap();
+        staged.commit().unwrap();
+        assert_eq!(fs::read_to_string(out.join("notes.txt")).unwrap(), "mine");
+        assert!(!out.join("summary.json").exists());
         #[cfg(unix)]
         {
             let link = d.join("link");
