@@ -158,6 +158,10 @@ fn default_sample_every() -> u64 {
     10
 }
 
+/// Largest setup file read, 1 MiB. A real setup is a few hundred bytes (the bundled ones are
+/// under 1 KiB), so this is far above any of them, and it keeps `noblescope run /dev/zero` from
+/// reading until memory runs out.
+pub const MAX_SETUP_BYTES: u64 = 1 << 20;
 /// Largest atom count a setup may ask for.
 pub const MAX_ATOMS: u64 = 1_000_000;
 /// Largest number of species in one mixture.
@@ -230,12 +234,24 @@ impl Setup {
     }
 
     /// Reads and parses a setup file (not yet validated; see [`Setup::resolve`]).
+    ///
+    /// At most [`MAX_SETUP_BYTES`] are read (through `take`, so a pipe or a device such as
+    /// `/dev/zero` is never read past the cap); a longer file is an error naming its size.
     pub fn load(path: &Path) -> Result<Setup, SetupError> {
-        let text = std::fs::read_to_string(path).map_err(|e| SetupError::Read {
-            file: path.display().to_string(),
-            message: e.to_string(),
-        })?;
-        Setup::parse(&text, &path.display().to_string())
+        let file = path.display().to_string();
+        let read = |message: String| SetupError::Read {
+            file: file.clone(),
+            message,
+        };
+        let bytes = crate::io::checkpoint::read_capped(path, MAX_SETUP_BYTES)
+            .map_err(|e| read(e.to_string()))?
+            .map_err(|size| {
+                read(format!(
+                    "size {size} is out of range; allowed: at most {MAX_SETUP_BYTES} bytes (a setup is a few hundred)"
+                ))
+            })?;
+        let text = String::from_utf8(bytes).map_err(|_| read("stream did not contain valid UTF-8".into()))?;
+        Setup::parse(&text, &file)
     }
 
     /// The setup as RON text, in the same layout users write.
