@@ -17,8 +17,9 @@ use super::parallel::{ELEMENTWISE_TASK, SharedMut};
 use rayon::prelude::*;
 
 /// Most cells per atom in the cell grid. Where cells r_c + skin wide would outnumber the atoms
-/// more than twice, the cells are made wider. Twice rather than once keeps the grid of dilute
-/// vapours such as `assets/neon-cryostat-vapour.ron` (ρ* ≈ 0.04, 1.1 cells per atom) unchanged.
+/// more than twice, the cells are made wider. A cell costs 4 bytes, so the grid stays under 8
+/// bytes an atom; twice rather than once leaves the grid (and so the run, bit for bit) as it was
+/// for vapours down to ρ (r_c + skin)³ = 1/2, e.g. ρ* ≈ 0.023 at r_c + skin = 2.8 σ.
 pub const MAX_CELLS_PER_ATOM: usize = 2;
 
 /// Atoms per storage chunk of the list; each chunk is built by one task, in one pass.
@@ -356,6 +357,8 @@ impl NeighbourList {
         let cp = &mut self.cell_pos;
         for v in [&mut cp.x, &mut cp.y, &mut cp.z] {
             v.clear();
+            // Exactly one slot an atom (pushing alone would double up to 2×).
+            v.reserve_exact(pos.len());
         }
         for &j in &self.cell_atoms {
             let p = pos[j as usize];
