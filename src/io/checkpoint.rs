@@ -153,7 +153,19 @@ impl Checkpoint {
             )));
         }
         let hlen = hlen as usize;
-        let header: Header = serde_json::from_slice(&body[at..at + hlen]).map_err(|e| bad(&e.to_string()))?;
+        let json = &body[at..at + hlen];
+        let header: Header = serde_json::from_slice(json).map_err(|e| match null_field(json) {
+            // JSON has no NaN or infinity: the writer turned a non-finite number into null.
+            Some(field) => CheckpointError::Invalid {
+                file: file.into(),
+                source: SetupError::Field {
+                    field,
+                    value: "null (a NaN or infinity when written)".into(),
+                    allowed: "a finite number".into(),
+                },
+            },
+            None => bad(&e.to_string()),
+        })?;
         at += hlen;
         let n = header.atoms;
         if n.checked_mul(BYTES_PER_ATOM) != Some(body.len() - at) {
@@ -223,6 +235,22 @@ impl Checkpoint {
         })?;
         Ok(c)
     }
+}
+
+/// The first null in a JSON header, named as a checkpoint field (e.g. `checkpoint.heat`).
+fn null_field(json: &[u8]) -> Option<String> {
+    fn find(v: &serde_json::Value, path: String) -> Option<String> {
+        match v {
+            serde_json::Value::Null => Some(path),
+            serde_json::Value::Object(m) => m.iter().find_map(|(k, v)| find(v, format!("{path}.{k}"))),
+            serde_json::Value::Array(a) => a
+                .iter()
+                .enumerate()
+                .find_map(|(i, v)| find(v, format!("{path}[{i}]"))),
+            _ => None,
+        }
+    }
+    find(&serde_json::from_slice(json).ok()?, "checkpoint".into())
 }
 
 /// Reads the file at `path` if it holds at most `cap` bytes; otherwise gives its size as text
