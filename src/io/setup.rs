@@ -166,8 +166,23 @@ pub const MAX_SETUP_BYTES: u64 = 1 << 20;
 pub const MAX_ATOMS: u64 = 1_000_000;
 /// Largest number of species in one mixture.
 pub const MAX_SPECIES: usize = 6;
-/// Bytes per atom the engine needs, with room for the neighbour list and a rewind snapshot.
-pub const BYTES_PER_ATOM_ESTIMATE: u64 = 600;
+/// Bytes per atom the engine needs besides the neighbour list's pairs: positions, velocities,
+/// forces and types (73), the list's per-atom arrays (at most 48 at any density, see
+/// `physics::neighbours`), a checkpoint being written (a copy of the state and its encoding,
+/// 2 × 61) and the window's rewind buffer (up to 8 snapshots of 73, `engine::rewind`), rounded
+/// up. Measured peak of a headless run without the rewind buffer: 234 bytes an atom at
+/// ρ* = 1e-6 to 1e-2, 373 at 0.8442 (`/usr/bin/time -v`, 100,000 atoms, r_c = 2.5 σ).
+pub const BYTES_PER_ATOM_ESTIMATE: u64 = 850;
+
+/// Bytes per atom of a run at reduced density `density` with r_c + skin = `reach` (σ):
+/// [`BYTES_PER_ATOM_ESTIMATE`] plus the neighbour list's pairs, 4 bytes each with up to 1/12
+/// slack, (2/3)π ρ reach³ of them an atom in a uniform fluid, counted a tenth more for the
+/// shells of a liquid or solid (measured at ρ* = 0.8442, r_c + skin = 2.8 σ: 37.7 pairs an atom,
+/// 38.8 uniform). At ρ* = 1.5 and r_c + skin = 12 σ the pairs alone take about 26 kB an atom.
+pub fn bytes_per_atom_estimate(density: f64, reach: f64) -> u64 {
+    let pairs = 2.0 / 3.0 * std::f64::consts::PI * density * reach.powi(3);
+    BYTES_PER_ATOM_ESTIMATE + (1.1 * pairs * 4.0 * 13.0 / 12.0).ceil() as u64
+}
 
 /// Why a setup cannot be run.
 #[derive(Clone, Debug, PartialEq, thiserror::Error)]
@@ -385,7 +400,6 @@ impl Setup {
                 format!("2 to {MAX_ATOMS}"),
             ));
         }
-        check_memory(self.atoms)?;
         let density = self.reduced_density(self.density)?;
         in_range(
             "density",
@@ -431,6 +445,7 @@ impl Setup {
             2.0,
             "0 σ to 2 σ",
         )?;
+        check_memory(self.atoms, bytes_per_atom_estimate(density, cutoff + skin))?;
         let thermostat = match self.ensemble {
             Ensemble::Nve => Thermostat::None,
             Ensemble::Nvt {
@@ -585,8 +600,8 @@ fn in_range(field: &str, shown: String, v: f64, lo: f64, hi: f64, allowed: &str)
 }
 
 /// Refuses atom counts whose arrays would not fit in the memory the machine has free.
-fn check_memory(atoms: u64) -> Result<(), SetupError> {
-    let need = atoms.saturating_mul(BYTES_PER_ATOM_ESTIMATE);
+fn check_memory(atoms: u64, per_atom: u64) -> Result<(), SetupError> {
+    let need = atoms.saturating_mul(per_atom);
     if let Some(available) = available_memory_bytes()
         && need > available
     {
@@ -595,7 +610,7 @@ fn check_memory(atoms: u64) -> Result<(), SetupError> {
             format!("{atoms} (needs about {} MB)", need / 1_000_000),
             format!(
                 "at most {} atoms with the {} MB of memory available now",
-                available / BYTES_PER_ATOM_ESTIMATE,
+                available / per_atom,
                 available / 1_000_000
             ),
         ));
