@@ -474,3 +474,37 @@ fn blow_up_exits_1_naming_step_and_atoms() {
     assert!(!out.join("summary.json").exists());
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+/// Setup files are read through a cap (`io::setup::MAX_SETUP_BYTES`, 1 MiB): a device that never
+/// ends is read no further than the cap, and a larger file is refused naming its size.
+#[test]
+fn endless_or_oversized_setup_files_are_refused_naming_file_size_and_maximum() {
+    let cap = noblescope::io::setup::MAX_SETUP_BYTES;
+    let dir = scratch("oversized");
+    let big = dir.join("big.ron");
+    // A valid setup followed by enough comment to pass the cap by one byte.
+    let mut body = GOOD.to_string();
+    body.push_str("//");
+    body.push_str(&"x".repeat(cap as usize + 1 - body.len()));
+    std::fs::write(&big, &body).unwrap();
+    let big_name = big.to_str().unwrap().to_owned();
+    let mut cases = vec![(big_name.clone(), format!("size {} bytes", cap + 1))];
+    if Path::new("/dev/zero").exists() {
+        cases.push(("/dev/zero".into(), format!("more than {cap} bytes")));
+    }
+    for (file, size) in cases {
+        let out = dir.join("out");
+        let o = noblescope(&["run", &file, "--out", out.to_str().unwrap(), "--quiet"]);
+        let (_, stderr) = text(&o);
+        assert_eq!(o.status.code(), Some(2), "{file}: {stderr}");
+        for e in [file.as_str(), size.as_str(), &format!("at most {cap} bytes")] {
+            assert!(stderr.contains(e), "{file}: error lacks {e:?}: {stderr}");
+        }
+        assert!(!out.exists(), "{file}: output folder created");
+    }
+    // One byte less is read and parsed as usual.
+    body.pop();
+    std::fs::write(&big, &body).unwrap();
+    assert!(noblescope::io::Setup::load(&big).is_ok());
+    let _ = std::fs::remove_dir_all(&dir);
+}

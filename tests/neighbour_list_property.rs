@@ -56,8 +56,17 @@ fn config(max_atoms: usize, species: u8) -> impl Strategy<Value = Config> {
         2usize..max_atoms,
         3.0f64..24.0,
         // Box edge / (cutoff + skin), from exactly 2 (the largest reach allowed) to 9: below 3 the
-        // list is built by the O(N²) path, at 3 and above by cells.
-        prop_oneof![2.0f64..9.0, Just(2.0), Just(3.0), Just(4.0), Just(6.0)],
+        // list is built by the O(N²) path, at 3 and above by cells. From 9 to 80 the box is
+        // dilute for the atom count drawn (down to ρ (r_c + skin)³ ≈ 4e-6), so the cell grid is
+        // capped at two cells an atom and its cells are wider than the reach.
+        prop_oneof![
+            2.0f64..9.0,
+            Just(2.0),
+            Just(3.0),
+            Just(4.0),
+            Just(6.0),
+            9.0f64..80.0
+        ],
         // Fraction of the reach that is cutoff (the rest is skin), down to a zero skin.
         prop_oneof![0.5f64..1.0, Just(1.0)],
         prop::sample::select(PotentialMode::ALL.to_vec()),

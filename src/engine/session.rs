@@ -37,8 +37,9 @@ impl Session {
 
     /// Continues from a checkpoint.
     pub fn from_checkpoint(c: Checkpoint) -> Result<Session, SetupError> {
-        // The setup must still be valid; the saved spec carries any live changes.
-        c.setup.resolve_for_this_machine()?;
+        // Setup, spec and state checked as strictly as a setup file; the spec carries live changes.
+        c.check()?;
+        c.setup.check_memory_available()?;
         let sim = Simulation::from_state(c.spec, c.state)?;
         Ok(Session {
             setup: c.setup,
@@ -70,7 +71,11 @@ impl Session {
     /// A checkpoint of the present state.
     pub fn checkpoint(&self) -> Checkpoint {
         Checkpoint {
-            setup: self.setup.clone(),
+            // A run taken past `steps` (`--steps`) records how far it went.
+            setup: Setup {
+                steps: self.setup.steps.max(self.sim.step_count()),
+                ..self.setup.clone()
+            },
             spec: self.sim.spec().clone(),
             state: self.sim.state(),
         }

@@ -6,8 +6,14 @@
 //! (f32 × 3N) —
 //! and an FNV-1a 64 checksum of everything before it. Floats are stored as their bits, so a
 //! continued run is bit-for-bit the run that was saved.
+//!
+//! Reading never trusts a length from the file: the whole file is read through a cap
+//! ([`MAX_CHECKPOINT_BYTES`]), the header length is checked against the bytes actually read and
+//! [`MAX_HEADER_BYTES`], and the atom count against the array bytes, before anything is
+//! allocated from them. A decoded checkpoint is then checked like a setup file
+//! ([`Checkpoint::check`]).
 
-use crate::io::setup::Setup;
+use crate::io::setup::{MAX_ATOMS, MAX_SETUP_BYTES, Setup, SetupError};
 use crate::physics::{SimulationSpec, SimulationState};
 use serde::{Deserialize, Serialize};
 use std::io::Write;
@@ -16,6 +22,17 @@ use std::path::Path;
 const MAGIC: &[u8] = b"NOBLESCOPE-STATE 2\n";
 /// Type, position, velocity and list reference of one atom.
 const BYTES_PER_ATOM: usize = 1 + 24 + 24 + 12;
+
+/// Largest JSON header a checkpoint may have. It holds the embedded setup, the RON of a setup
+/// file of at most [`MAX_SETUP_BYTES`], in which escaping grows a character at most eightfold
+/// (a control character in the title becomes `\u{1f}` in RON and its backslash `\\` in JSON),
+/// and the spec and scalars, well under 4 KiB.
+pub const MAX_HEADER_BYTES: u64 = 8 * MAX_SETUP_BYTES + 4096;
+
+/// Largest checkpoint file read: magic, length, the largest header and the arrays of
+/// [`MAX_ATOMS`] atoms, plus the checksum (about 63 MB).
+pub const MAX_CHECKPOINT_BYTES: u64 =
+    MAGIC.len() as u64 + 8 + MAX_HEADER_BYTES + MAX_ATOMS * BYTES_PER_ATOM as u64 + 8;
 
 /// What a checkpoint holds.
 #[derive(Clone, Debug, PartialEq)]
@@ -48,6 +65,18 @@ pub enum CheckpointError {
     Io { file: String, message: String },
     #[error("{file}: not a Noblescope checkpoint or damaged ({message})")]
     Format { file: String, message: String },
+    /// The file is larger than any checkpoint can be.
+    #[error(
+        "{file}: size {size} is out of range; allowed: at most {MAX_CHECKPOINT_BYTES} bytes (the checkpoint of {MAX_ATOMS} atoms)"
+    )]
+    TooLarge {
+        file: String,
+        /// The size, or "more than …" when the file is not a regular one.
+        size: String,
+    },
+    /// The file decodes, but its contents cannot be continued ([`Checkpoint::check`]).
+    #[error("{file}: {source}")]
+    Invalid { file: String, source: SetupError },
 }
 
 fn fnv1a(bytes: &[u8]) -> u64 {
@@ -113,12 +142,30 @@ impl Checkpoint {
             return Err(bad("checksum mismatch: the file is truncated or changed"));
         }
         let mut at = MAGIC.len();
-        let hlen = u64::from_le_bytes(body[at..at + 8].try_into().unwrap()) as usize;
+        let hlen = u64::from_le_bytes(body[at..at + 8].try_into().unwrap());
         at += 8;
-        if hlen > body.len() - at {
+        if hlen > (body.len() - at) as u64 {
             return Err(bad("header length beyond the end"));
         }
-        let header: Header = serde_json::from_slice(&body[at..at + hlen]).map_err(|e| bad(&e.to_string()))?;
+        if hlen > MAX_HEADER_BYTES {
+            return Err(bad(&format!(
+                "header length {hlen} is out of range; allowed: at most {MAX_HEADER_BYTES} bytes"
+            )));
+        }
+        let hlen = hlen as usize;
+        let json = &body[at..at + hlen];
+        let header: Header = serde_json::from_slice(json).map_err(|e| match null_field(json) {
+            // JSON has no NaN or infinity: the writer turned a non-finite number into null.
+            Some(field) => CheckpointError::Invalid {
+                file: file.into(),
+                source: SetupError::Field {
+                    field,
+                    value: "null (a NaN or infinity when written)".into(),
+                    allowed: "a finite number".into(),
+                },
+            },
+            None => bad(&e.to_string()),
+        })?;
         at += hlen;
         let n = header.atoms;
         if n.checked_mul(BYTES_PER_ATOM) != Some(body.len() - at) {
@@ -167,15 +214,61 @@ impl Checkpoint {
         write_atomically(path, &self.to_bytes())
     }
 
-    /// Reads a checkpoint file.
+    /// Reads a checkpoint file (at most [`MAX_CHECKPOINT_BYTES`] of it, so a device or a pipe is
+    /// never read past that), decodes it and checks it ([`Checkpoint::check`]).
     pub fn load(path: &Path) -> Result<Checkpoint, CheckpointError> {
         let file = path.display().to_string();
-        let bytes = std::fs::read(path).map_err(|e| CheckpointError::Io {
+        let io = |e: std::io::Error| CheckpointError::Io {
             file: file.clone(),
             message: e.to_string(),
+        };
+        let bytes = read_capped(path, MAX_CHECKPOINT_BYTES)
+            .map_err(io)?
+            .map_err(|size| CheckpointError::TooLarge {
+                file: file.clone(),
+                size,
+            })?;
+        let c = Checkpoint::from_bytes(&bytes, &file)?;
+        c.check().map_err(|source| CheckpointError::Invalid {
+            file: file.clone(),
+            source,
         })?;
-        Checkpoint::from_bytes(&bytes, &file)
+        Ok(c)
     }
+}
+
+/// The first null in a JSON header, named as a checkpoint field (e.g. `checkpoint.heat`).
+fn null_field(json: &[u8]) -> Option<String> {
+    fn find(v: &serde_json::Value, path: String) -> Option<String> {
+        match v {
+            serde_json::Value::Null => Some(path),
+            serde_json::Value::Object(m) => m.iter().find_map(|(k, v)| find(v, format!("{path}.{k}"))),
+            serde_json::Value::Array(a) => a
+                .iter()
+                .enumerate()
+                .find_map(|(i, v)| find(v, format!("{path}[{i}]"))),
+            _ => None,
+        }
+    }
+    find(&serde_json::from_slice(json).ok()?, "checkpoint".into())
+}
+
+/// Reads the file at `path` if it holds at most `cap` bytes; otherwise gives its size as text
+/// (exact for a regular file, "more than `cap`" for a device or pipe, which is read no further
+/// than `cap` + 1 bytes).
+pub(crate) fn read_capped(path: &Path, cap: u64) -> std::io::Result<Result<Vec<u8>, String>> {
+    use std::io::Read;
+    let f = std::fs::File::open(path)?;
+    let meta = f.metadata()?;
+    if meta.is_file() && meta.len() > cap {
+        return Ok(Err(format!("{} bytes", meta.len())));
+    }
+    let mut bytes = Vec::with_capacity(if meta.is_file() { meta.len() as usize } else { 0 });
+    f.take(cap + 1).read_to_end(&mut bytes)?;
+    if bytes.len() as u64 > cap {
+        return Ok(Err(format!("more than {cap} bytes")));
+    }
+    Ok(Ok(bytes))
 }
 
 /// Decodes little-endian 3-vectors; `word` turns one element's bytes into a number.

@@ -1,6 +1,7 @@
 //! Every byte in or out: setup files, checkpoints, energy logs, trajectories, summaries.
 
 pub mod checkpoint;
+mod checkpoint_check;
 pub mod energy_log;
 pub mod numbers;
 pub mod rdf_csv;

@@ -158,6 +158,10 @@ fn default_sample_every() -> u64 {
     10
 }
 
+/// Largest setup file read, 1 MiB. A real setup is a few hundred bytes (the bundled ones are
+/// under 1 KiB), so this is far above any of them, and it keeps `noblescope run /dev/zero` from
+/// reading until memory runs out.
+pub const MAX_SETUP_BYTES: u64 = 1 << 20;
 /// Largest atom count a setup may ask for.
 pub const MAX_ATOMS: u64 = 1_000_000;
 /// Reduced density ρσ³ a setup may ask for: (smallest, largest).
@@ -172,8 +176,23 @@ pub const CUTOFF_RANGE_SIGMA: (f64, f64) = (1.0, 10.0);
 pub const SKIN_RANGE_SIGMA: (f64, f64) = (0.0, 2.0);
 /// Largest number of species in one mixture.
 pub const MAX_SPECIES: usize = 6;
-/// Bytes per atom the engine needs, with room for the neighbour list and a rewind snapshot.
-pub const BYTES_PER_ATOM_ESTIMATE: u64 = 600;
+/// Bytes per atom the engine needs besides the neighbour list's pairs: positions, velocities,
+/// forces and types (73), the list's per-atom arrays (at most 48 at any density, see
+/// `physics::neighbours`), a checkpoint being written (a copy of the state and its encoding,
+/// 2 × 61) and the window's rewind buffer (up to 8 snapshots of 73, `engine::rewind`), rounded
+/// up. Measured peak of a headless run without the rewind buffer: 234 bytes an atom at
+/// ρ* = 1e-6 to 1e-2, 373 at 0.8442 (`/usr/bin/time -v`, 100,000 atoms, r_c = 2.5 σ).
+pub const BYTES_PER_ATOM_ESTIMATE: u64 = 850;
+
+/// Bytes per atom of a run at reduced density `density` with r_c + skin = `reach` (σ):
+/// [`BYTES_PER_ATOM_ESTIMATE`] plus the neighbour list's pairs, 4 bytes each with up to 1/12
+/// slack, (2/3)π ρ reach³ of them an atom in a uniform fluid, counted a tenth more for the
+/// shells of a liquid or solid (measured at ρ* = 0.8442, r_c + skin = 2.8 σ: 37.7 pairs an atom,
+/// 38.8 uniform). At ρ* = 1.5 and r_c + skin = 12 σ the pairs alone take about 26 kB an atom.
+pub fn bytes_per_atom_estimate(density: f64, reach: f64) -> u64 {
+    let pairs = 2.0 / 3.0 * std::f64::consts::PI * density * reach.powi(3);
+    BYTES_PER_ATOM_ESTIMATE + (1.1 * pairs * 4.0 * 13.0 / 12.0).ceil() as u64
+}
 
 /// Why a setup cannot be run.
 #[derive(Clone, Debug, PartialEq, thiserror::Error)]
@@ -240,12 +259,24 @@ impl Setup {
     }
 
     /// Reads and parses a setup file (not yet validated; see [`Setup::resolve`]).
+    ///
+    /// At most [`MAX_SETUP_BYTES`] are read (through `take`, so a pipe or a device such as
+    /// `/dev/zero` is never read past the cap); a longer file is an error naming its size.
     pub fn load(path: &Path) -> Result<Setup, SetupError> {
-        let text = std::fs::read_to_string(path).map_err(|e| SetupError::Read {
-            file: path.display().to_string(),
-            message: e.to_string(),
-        })?;
-        Setup::parse(&text, &path.display().to_string())
+        let file = path.display().to_string();
+        let read = |message: String| SetupError::Read {
+            file: file.clone(),
+            message,
+        };
+        let bytes = crate::io::checkpoint::read_capped(path, MAX_SETUP_BYTES)
+            .map_err(|e| read(e.to_string()))?
+            .map_err(|size| {
+                read(format!(
+                    "size {size} is out of range; allowed: at most {MAX_SETUP_BYTES} bytes (a setup is a few hundred)"
+                ))
+            })?;
+        let text = String::from_utf8(bytes).map_err(|_| read("stream did not contain valid UTF-8".into()))?;
+        Setup::parse(&text, &file)
     }
 
     /// The setup as RON text, in the same layout users write.
@@ -521,14 +552,19 @@ impl Setup {
     /// a simulation.
     pub fn resolve_for_this_machine(&self) -> Result<SimulationSpec, SetupError> {
         let spec = self.resolve()?;
-        self.check_memory_available()?;
+        check_memory(
+            self.atoms,
+            bytes_per_atom_estimate(spec.density, spec.cutoff + spec.skin),
+        )?;
         Ok(spec)
     }
 
     /// Refuses an atom count whose arrays would not fit in the memory the machine has free now
-    /// (reads /proc/meminfo; passes where there is none). The error names the `atoms` field.
+    /// (reads /proc/meminfo; passes where there is none), counting the neighbour list at the
+    /// setup's density and reach ([`bytes_per_atom_estimate`]). The error names the `atoms`
+    /// field; a setup that does not validate gives its validation error.
     pub fn check_memory_available(&self) -> Result<(), SetupError> {
-        check_memory(self.atoms)
+        self.resolve_for_this_machine().map(|_| ())
     }
 
     fn check_species(&self) -> Result<(), SetupError> {
@@ -605,8 +641,8 @@ fn in_range(field: &str, shown: String, v: f64, lo: f64, hi: f64, allowed: &str)
 }
 
 /// Refuses atom counts whose arrays would not fit in the memory the machine has free.
-fn check_memory(atoms: u64) -> Result<(), SetupError> {
-    let need = atoms.saturating_mul(BYTES_PER_ATOM_ESTIMATE);
+fn check_memory(atoms: u64, per_atom: u64) -> Result<(), SetupError> {
+    let need = atoms.saturating_mul(per_atom);
     if let Some(available) = available_memory_bytes()
         && need > available
     {
@@ -615,7 +651,7 @@ fn check_memory(atoms: u64) -> Result<(), SetupError> {
             format!("{atoms} (needs about {} MB)", need / 1_000_000),
             format!(
                 "at most {} atoms with the {} MB of memory available now",
-                available / BYTES_PER_ATOM_ESTIMATE,
+                available / per_atom,
                 available / 1_000_000
             ),
         ));

@@ -18,7 +18,7 @@ pub mod units;
 
 pub use observables::Observables;
 pub use potential::PotentialMode;
-pub use simulation::{Blowup, Simulation, SimulationSpec, SimulationState, SpecError};
+pub use simulation::{Blowup, Simulation, SimulationSpec, SimulationState, SpecError, StateError};
 pub use species::Species;
 pub use stage_clock::{Stage, StageClock, StageTime, StageTimes};
 pub use system::System;

@@ -6,10 +6,22 @@
 //! pair only touches its owner's slab and the two next to it. The force loop processes slabs
 //! s ≡ 0, 1, 2 (mod 3) in three phases: within a phase no two slabs write the same atom, and the
 //! order of additions into every atom is fixed by geometry alone, never by the thread count.
+//!
+//! Memory is O(N) at any density: cells are at least r_c + skin wide, and in a dilute box they
+//! grow wider still so that there are at most [`MAX_CELLS_PER_ATOM`] cells per atom (the grid
+//! costs 4 bytes a cell). The search stays exact: a cell wider than the reach only means more
+//! distances tested. The slab schedule does not depend on the cell grid (slabs are cut from the
+//! box edge and the reach alone), and there are at most L / (r_c + skin) slabs of a few bytes each.
 
 use super::geometry::{fold, separation};
 use super::parallel::{ELEMENTWISE_TASK, SharedMut};
 use rayon::prelude::*;
+
+/// Most cells per atom in the cell grid. Where cells r_c + skin wide would outnumber the atoms
+/// more than twice, the cells are made wider. A cell costs 4 bytes, so the grid stays under 8
+/// bytes an atom; twice rather than once leaves the grid (and so the run, bit for bit) as it was
+/// for vapours down to ρ (r_c + skin)³ = 1/2, e.g. ρ* ≈ 0.023 at r_c + skin = 2.8 σ.
+pub const MAX_CELLS_PER_ATOM: usize = 2;
 
 /// Atoms per storage chunk of the list; each chunk is built by one task, in one pass.
 const CHUNK_SHIFT: usize = 10;
@@ -35,10 +47,8 @@ pub struct NeighbourList {
     cell_starts: Vec<u32>,
     cell_atoms: Vec<u32>,
     cell_pos: CellPositions,
-    /// For each cell, its 13 half-shell neighbour cells and the periodic shift to apply.
-    shell: Vec<ShellCell>,
-    shell_cells: usize,
-    shell_box: f64,
+    /// Cells per box edge at the last build (0 when the all-pairs search was used).
+    cells: usize,
     box_length: f64,
     builds: u64,
 }
@@ -50,13 +60,6 @@ struct CellPositions {
     x: Vec<f32>,
     y: Vec<f32>,
     z: Vec<f32>,
-}
-
-/// One half-shell neighbour of a cell: its index and the box-edge shift of its image.
-#[derive(Clone, Copy, Debug, Default)]
-struct ShellCell {
-    cell: u32,
-    shift: [f32; 3],
 }
 
 /// The 13 forward cell offsets of the half shell (the other 13 are their negatives).
@@ -88,10 +91,52 @@ fn cell_of(p: &[f32; 3], l: f64, cells: usize) -> usize {
     (bin(p[0], l, cells) * cells + bin(p[1], l, cells)) * cells + bin(p[2], l, cells)
 }
 
+/// Cells per box edge for `atoms` atoms in a box of edge `l`: as many as fit at least `reach`
+/// wide, but no more than [`MAX_CELLS_PER_ATOM`] cells per atom in all (cells may be wider than
+/// the reach, never narrower). Below 3 the list is built by the all-pairs search.
+pub fn cells_per_edge(l: f64, reach: f64, atoms: usize) -> usize {
+    let fit = (l / reach).floor();
+    // `as` saturates (and maps NaN to 0); the cap below bounds the result anyway.
+    let fit = if fit >= 1.0 { fit.min(1e9) as usize } else { 0 };
+    let most = atoms.saturating_mul(MAX_CELLS_PER_ATOM);
+    let mut cap = (most as f64).cbrt().floor() as usize;
+    while (cap + 1).saturating_pow(3) <= most {
+        cap += 1;
+    }
+    while cap > 0 && cap.saturating_pow(3) > most {
+        cap -= 1;
+    }
+    fit.min(cap)
+}
+
 /// Extra reach that covers single-precision rounding of coordinates up to the box edge.
 #[inline]
 fn margin(l: f64) -> f64 {
     1e-4 + l * 1e-6
+}
+
+/// The first atom farther from its list reference position than a list rebuilt from the
+/// references allows (half the skin, plus the search margin for single-precision rounding), with
+/// its distance; `None` when every atom is within. A state whose atoms all pass was saved by a
+/// run that kept its list current, so the list rebuilt from the references holds every pair
+/// within the cutoff. Positions and references must have the same length.
+pub fn first_beyond_half_skin(
+    positions: &[[f64; 3]],
+    reference: &[[f32; 3]],
+    box_length: f64,
+    skin: f64,
+) -> Option<(usize, f64)> {
+    let limit = 0.5 * skin + margin(box_length);
+    let inv_l = 1.0 / box_length;
+    positions
+        .iter()
+        .zip(reference)
+        .enumerate()
+        .find_map(|(i, (p, r))| {
+            let r = [r[0] as f64, r[1] as f64, r[2] as f64];
+            let d = separation(p, &r, box_length, inv_l).1.sqrt();
+            (d.is_nan() || d > limit).then_some((i, d))
+        })
 }
 
 impl NeighbourList {
@@ -167,6 +212,12 @@ impl NeighbourList {
             + self.cell_atoms.capacity())
             + 4 * (self.cell_pos.x.capacity() + self.cell_pos.y.capacity() + self.cell_pos.z.capacity())
             + 12 * self.reference.capacity()
+            + self.chunks.capacity() * std::mem::size_of::<Vec<u32>>()
+    }
+
+    /// Cells per box edge of the grid at the last build (0 if all pairs were searched).
+    pub fn cells_per_edge(&self) -> usize {
+        self.cells
     }
 
     /// Whether some atom moved more than half the skin since the last build.
@@ -217,10 +268,12 @@ impl NeighbourList {
         let n = self.reference.len();
         self.box_length = l;
         self.builds += 1;
-        let cells = (l / self.reach).floor() as usize;
+        let cells = cells_per_edge(l, self.reach, n);
         if cells >= 3 {
             self.sort_into_cells(l, cells);
-            self.build_shell(cells, l);
+            self.cells = cells;
+        } else {
+            self.cells = 0;
         }
         self.ends.clear();
         self.ends.resize(n, 0);
@@ -236,7 +289,6 @@ impl NeighbourList {
             starts: &self.cell_starts,
             atoms: &self.cell_atoms,
             pos: &self.cell_pos,
-            shell: &self.shell,
         };
         // Expected partners per atom of a uniform fluid, (2/3)π ρ reach³: the first build
         // reserves near the final size instead of growing step by step.
@@ -284,6 +336,8 @@ impl NeighbourList {
         let cp = &mut self.cell_pos;
         for v in [&mut cp.x, &mut cp.y, &mut cp.z] {
             v.clear();
+            // Exactly one slot an atom (pushing alone would double up to 2×).
+            v.reserve_exact(pos.len());
         }
         for &j in &self.cell_atoms {
             let p = pos[j as usize];
@@ -291,46 +345,6 @@ impl NeighbourList {
             cp.y.push(p[1]);
             cp.z.push(p[2]);
         }
-    }
-
-    /// Fills the half-shell neighbour table of every cell (once per box and cell count).
-    fn build_shell(&mut self, cells: usize, l: f64) {
-        let total = cells * cells * cells;
-        if self.shell_cells == total && self.shell.len() == 13 * total && self.shell_box == l {
-            return;
-        }
-        self.shell.clear();
-        let nc = cells as i32;
-        let lf = l as f32;
-        for c in 0..total {
-            let here = [
-                (c / (cells * cells)) as i32,
-                ((c / cells) % cells) as i32,
-                (c % cells) as i32,
-            ];
-            for off in &HALF_SHELL {
-                let mut shift = [0f32; 3];
-                let mut idx = [0usize; 3];
-                for a in 0..3 {
-                    let x = here[a] + off[a];
-                    // A neighbour across a face: its atoms are seen one box edge away.
-                    shift[a] = if x >= nc {
-                        lf
-                    } else if x < 0 {
-                        -lf
-                    } else {
-                        0.0
-                    };
-                    idx[a] = x.rem_euclid(nc) as usize;
-                }
-                self.shell.push(ShellCell {
-                    cell: ((idx[0] * cells + idx[1]) * cells + idx[2]) as u32,
-                    shift,
-                });
-            }
-        }
-        self.shell_cells = total;
-        self.shell_box = l;
     }
 
     fn build_slabs(&mut self, l: f64) {
@@ -369,7 +383,6 @@ struct Grid<'a> {
     starts: &'a [u32],
     atoms: &'a [u32],
     pos: &'a CellPositions,
-    shell: &'a [ShellCell],
 }
 
 impl Grid<'_> {
@@ -381,7 +394,13 @@ impl Grid<'_> {
     fn partners(&self, pos: &[[f32; 3]], i: usize, list: &mut Vec<u32>) {
         let reach = self.reach + margin(self.l);
         let reach2 = (reach * reach) as f32;
-        let own = cell_of(&pos[i], self.l, self.cells);
+        let n = self.cells;
+        let here = [
+            bin(pos[i][0], self.l, n),
+            bin(pos[i][1], self.l, n),
+            bin(pos[i][2], self.l, n),
+        ];
+        let own = (here[0] * n + here[1]) * n + here[2];
         let (lo, hi) = (self.starts[own] as usize, self.starts[own + 1] as usize);
         let slot = lo
             + self.atoms[lo..hi]
@@ -390,9 +409,25 @@ impl Grid<'_> {
                 .expect("atom is in its own cell");
         let pi = [self.pos.x[slot], self.pos.y[slot], self.pos.z[slot]];
         self.scan(pi, slot + 1, hi, reach2, list);
-        for sc in &self.shell[13 * own..13 * own + 13] {
-            let c = sc.cell as usize;
-            let q = [pi[0] - sc.shift[0], pi[1] - sc.shift[1], pi[2] - sc.shift[2]];
+        let (nc, lf) = (n as i32, self.l as f32);
+        for off in &HALF_SHELL {
+            // The neighbour cell and, across a box face, the shift of its image by one box edge
+            // (computed here rather than stored per cell: a table would cost 208 bytes a cell).
+            let mut shift = [0f32; 3];
+            let mut idx = [0usize; 3];
+            for a in 0..3 {
+                let x = here[a] as i32 + off[a];
+                shift[a] = if x >= nc {
+                    lf
+                } else if x < 0 {
+                    -lf
+                } else {
+                    0.0
+                };
+                idx[a] = x.rem_euclid(nc) as usize;
+            }
+            let c = (idx[0] * n + idx[1]) * n + idx[2];
+            let q = [pi[0] - shift[0], pi[1] - shift[1], pi[2] - shift[2]];
             self.scan(
                 q,
                 self.starts[c] as usize,

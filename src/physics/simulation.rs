@@ -50,6 +50,34 @@ pub struct SpecError {
     pub allowed: String,
 }
 
+/// A saved state that its spec cannot continue from, naming the field (with the atom for the
+/// per-atom arrays, e.g. `velocities[17]`), the value and the allowed range.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+#[error("{field}: {value} is out of range; allowed: {allowed}")]
+pub struct StateError {
+    pub field: String,
+    pub value: String,
+    pub allowed: String,
+}
+
+/// Largest velocity component a saved state may hold, in σ/τ of the reference species.
+///
+/// The thermal speed per component is √(T/m): about 60 σ/τ for the hottest start a setup may
+/// ask for (T = 100 ε/k_B) and the lightest atom in a mixture (helium beside xenon, m ≈ 0.03).
+/// Ten thousand is far above anything a healthy run reaches, and far below where kinetic
+/// energies stop being finite (1e200 overflows when squared and summed).
+pub const MAX_SPEED: f64 = 1e4;
+
+/// Largest unwrapped coordinate a saved state may hold, in σ: twice as far as an atom at
+/// [`MAX_SPEED`] travels in the longest run a setup allows (1e10 steps of 0.05 τ: 5e12 σ).
+pub const MAX_COORDINATE: f64 = 1e13;
+
+/// Relative tolerance between a saved box edge and the edge the spec's atom count and density
+/// give. The two are computed by the same expression, so they are normally equal to the bit;
+/// 1e-9 allows for a `cbrt` that rounds differently on another platform, and nothing more (a
+/// box 1e-9 too large moves the farthest atoms by 1e-9 L, far below the search margin).
+pub const BOX_LENGTH_TOLERANCE: f64 = 1e-9;
+
 /// The run became non-finite: at which step, and which atoms.
 #[derive(Clone, Debug, PartialEq, thiserror::Error)]
 #[error("the simulation blew up at step {step}: {reason} (atoms {atoms:?})")]
@@ -189,6 +217,116 @@ pub struct SimulationState {
     pub drift_scale: f64,
 }
 
+impl SimulationState {
+    /// Checks that `spec` can continue from this state: one entry per atom in every array,
+    /// the counts of each type equal to the spec's, the box edge that of the spec (within
+    /// [`BOX_LENGTH_TOLERANCE`]), every position finite and within [`MAX_COORDINATE`], every
+    /// velocity finite and within [`MAX_SPEED`], the list reference finite and folded into the
+    /// box, time, heat and drift origin finite, and the drift scale positive and finite.
+    pub fn check(&self, spec: &SimulationSpec) -> Result<(), StateError> {
+        let err = |field: String, value: String, allowed: String| {
+            Err(StateError {
+                field,
+                value,
+                allowed,
+            })
+        };
+        let n = spec.atoms();
+        for (field, len) in [
+            ("positions", self.positions.len()),
+            ("velocities", self.velocities.len()),
+            ("types", self.types.len()),
+            ("list_reference", self.list_reference.len()),
+        ] {
+            if len != n {
+                return err(
+                    field.to_string(),
+                    format!("{len} atoms"),
+                    format!("{n} atoms, as the spec's counts {:?} add up to", spec.counts),
+                );
+            }
+        }
+        let mut counts = vec![0usize; spec.kinds.len()];
+        for (i, &t) in self.types.iter().enumerate() {
+            match counts.get_mut(t as usize) {
+                Some(c) => *c += 1,
+                None => {
+                    return err(
+                        format!("types[{i}]"),
+                        t.to_string(),
+                        format!("0 to {} (one per species)", spec.kinds.len() - 1),
+                    );
+                }
+            }
+        }
+        if counts != spec.counts {
+            return err(
+                "types".into(),
+                format!("atoms per species {counts:?}"),
+                format!("the spec's counts {:?}", spec.counts),
+            );
+        }
+        let l = spec.box_length();
+        let lb = self.box_length;
+        if !(lb.is_finite() && (lb - l).abs() <= BOX_LENGTH_TOLERANCE * l) {
+            return err(
+                "box_length".into(),
+                format!("{lb:e} σ"),
+                format!(
+                    "{l:e} σ (within a relative {BOX_LENGTH_TOLERANCE:e}), the edge of {n} atoms at density {:e}",
+                    spec.density
+                ),
+            );
+        }
+        if !(self.time.is_finite() && self.time >= 0.0) {
+            return err("time".into(), self.time.to_string(), "zero or positive".into());
+        }
+        for (field, v) in [("heat", self.heat), ("drift_origin", self.drift_origin)] {
+            if !v.is_finite() {
+                return err(field.into(), v.to_string(), "a finite number".into());
+            }
+        }
+        if !(self.drift_scale.is_finite() && self.drift_scale > 0.0) {
+            return err(
+                "drift_scale".into(),
+                self.drift_scale.to_string(),
+                "a positive finite number".into(),
+            );
+        }
+        let outside = |v: &[f64; 3], limit: f64| v.iter().copied().find(|x| x.is_nan() || x.abs() > limit);
+        for (field, array, limit, unit) in [
+            ("positions", &self.positions, MAX_COORDINATE, "σ"),
+            ("velocities", &self.velocities, MAX_SPEED, "σ/τ"),
+        ] {
+            if let Some((i, x)) = array
+                .iter()
+                .enumerate()
+                .find_map(|(i, v)| outside(v, limit).map(|x| (i, x)))
+            {
+                return err(
+                    format!("{field}[{i}]"),
+                    format!("{x:e}"),
+                    format!("finite components from -{limit:e} to {limit:e} {unit}"),
+                );
+            }
+        }
+        // Folding rounds to single precision, which may give L itself.
+        let top = lb as f32;
+        if let Some(i) = self
+            .list_reference
+            .iter()
+            .position(|r| !r.iter().all(|&x| (0.0..=top).contains(&x)))
+        {
+            return err(
+                format!("list_reference[{i}]"),
+                format!("{:?}", self.list_reference[i]),
+                format!("coordinates folded into the box, 0 to {lb} σ"),
+            );
+        }
+        Ok(())
+    }
+}
+
 /// A running simulation.
 pub struct Simulation {
     spec: SimulationSpec,
@@ -238,26 +376,16 @@ impl Simulation {
         Ok(sim)
     }
 
-    /// Continues from a saved state; the spec must describe the same atoms.
+    /// Continues from a saved state; the spec must describe the same atoms and the state must
+    /// pass [`SimulationState::check`] (the error then names the state's field in its value).
     pub fn from_state(spec: SimulationSpec, state: SimulationState) -> Result<Self, SpecError> {
         spec.check()?;
         let n = spec.atoms();
-        if state.positions.len() != n
-            || state.velocities.len() != n
-            || state.types.len() != n
-            || state.list_reference.len() != n
-        {
+        if let Err(e) = state.check(&spec) {
             return Err(SpecError {
-                field: "atoms",
-                value: format!("{} in the saved state", state.positions.len()),
-                allowed: format!("{n}, as in the setup"),
-            });
-        }
-        if state.types.iter().any(|&t| t as usize >= spec.kinds.len()) {
-            return Err(SpecError {
-                field: "species",
-                value: "a type index beyond the species list".into(),
-                allowed: format!("{} species", spec.kinds.len()),
+                field: "state",
+                value: format!("{}: {}", e.field, e.value),
+                allowed: e.allowed,
             });
         }
         let system = System {
