@@ -222,7 +222,7 @@ impl Checkpoint {
             file: file.clone(),
             message: e.to_string(),
         };
-        let bytes = read_capped(path, MAX_CHECKPOINT_BYTES)
+        let bytes = super::capped_read::read_capped(path, MAX_CHECKPOINT_BYTES)
             .map_err(io)?
             .map_err(|size| CheckpointError::TooLarge {
                 file: file.clone(),
@@ -251,24 +251,6 @@ fn null_field(json: &[u8]) -> Option<String> {
         }
     }
     find(&serde_json::from_slice(json).ok()?, "checkpoint".into())
-}
-
-/// Reads the file at `path` if it holds at most `cap` bytes; otherwise gives its size as text
-/// (exact for a regular file, "more than `cap`" for a device or pipe, which is read no further
-/// than `cap` + 1 bytes).
-pub(crate) fn read_capped(path: &Path, cap: u64) -> std::io::Result<Result<Vec<u8>, String>> {
-    use std::io::Read;
-    let f = std::fs::File::open(path)?;
-    let meta = f.metadata()?;
-    if meta.is_file() && meta.len() > cap {
-        return Ok(Err(format!("{} bytes", meta.len())));
-    }
-    let mut bytes = Vec::with_capacity(if meta.is_file() { meta.len() as usize } else { 0 });
-    f.take(cap + 1).read_to_end(&mut bytes)?;
-    if bytes.len() as u64 > cap {
-        return Ok(Err(format!("more than {cap} bytes")));
-    }
-    Ok(Ok(bytes))
 }
 
 /// Decodes little-endian 3-vectors; `word` turns one element's bytes into a number.

@@ -1,5 +1,6 @@
 //! Every byte in or out: setup files, checkpoints, energy logs, trajectories, summaries.
 
+pub mod capped_read;
 pub mod checkpoint;
 mod checkpoint_check;
 pub mod energy_log;

@@ -6,46 +6,24 @@
 //! ([`super::menu_bar`], [`super::panels`]).
 
 use super::events::{self, Echo, RunView};
-use super::file_actions::{Ask, PictureTaker};
 use super::files;
 use super::leave::{Leave, LeaveQuestion};
 use super::particle_view::ParticleView;
+use super::pending::{Ask, PictureTaker};
 use super::persist::{self, Remembered};
 use super::setup_form::SetupForm;
+use super::start::{StartOptions, bundled_setup};
 use super::status::Message;
 use super::tuning_panel::TuningPanel;
-use super::watch::{StartView, WatchPlan, Watching};
+use super::watch::{StartView, Watching};
 use crate::engine::{Command, EngineHandle, Frame};
 use crate::io::setup::Setup;
 use std::path::PathBuf;
 use std::time::{Duration, Instant};
 
-/// The scenario the window opens on when nothing else is asked for.
-pub const BUNDLED_SCENARIO: &str = include_str!("../../assets/krypton-getter-sample.ron");
-/// Its name in messages and the title bar.
-pub const BUNDLED_NAME: &str = "krypton-getter-sample.ron";
-
 /// Repaint interval while the simulation runs (about 40 frames per second), counted from the
 /// start of a frame: the next frame is asked for before this one is built.
 pub const RUNNING_FRAME_INTERVAL: Duration = Duration::from_millis(25);
-
-/// The bundled scenario, parsed.
-pub fn bundled_setup() -> Setup {
-    Setup::parse(BUNDLED_SCENARIO, BUNDLED_NAME).expect("the bundled scenario parses")
-}
-
-/// How the window starts.
-#[derive(Clone, Debug, Default)]
-pub struct StartOptions {
-    /// Setup to open and where it came from; `None`: the remembered one, else the bundled one.
-    pub setup: Option<(Setup, Option<PathBuf>)>,
-    /// First view.
-    pub view: Option<StartView>,
-    /// Scripted watching.
-    pub watch: Option<WatchPlan>,
-    /// Read and write the remembered state (off for scripted runs and tests).
-    pub persist: bool,
-}
 
 /// The eframe application. Its fields are shared with the files that do its other jobs.
 pub struct NoblescopeApp {

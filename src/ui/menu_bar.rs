@@ -2,9 +2,9 @@
 //! the title of the running setup. Key labels come from [`super::shortcuts`].
 
 use super::app::NoblescopeApp;
-use super::file_actions::Ask;
 use super::files;
 use super::leave::Leave;
+use super::pending::Ask;
 use super::shortcuts::{Action, hint_of, keys_of};
 use crate::engine::Command;
 

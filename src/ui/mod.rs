@@ -5,15 +5,18 @@
 //! - [`events`]: engine events turned into window state (a plain function, tested without egui);
 //! - [`leave`]: the "Keep your edits?" question before closing or opening another setup;
 //! - [`shortcuts`]: the one table of keys, read by the key handling, menus, tooltips and help;
-//! - [`persist`]: what is remembered between sessions, and the start state;
+//! - [`start`]: the bundled scenario and the start options; [`persist`]: what is remembered
+//!   between sessions, and the start state;
 //! - [`file_actions`]: opening and saving setups, checkpoints, the energy log and pictures;
+//!   [`pending`]: the open dialog's purpose and a picture being taken;
 //! - [`menu_bar`], [`panels`]: the top bar, and the panels and overlays around the view;
 //! - [`setup_form`], [`unit_field`]: editing and validating a setup;
 //! - [`particle_view`], [`slab_view`], [`gl_spheres`], [`cull`]: the atoms in 3D or as a flat slab;
 //! - [`plots`], [`series`]: live plots on bounded, envelope-keeping series;
 //! - [`tuning_panel`]: timestep and cutoff scans before a long run;
 //! - [`status`], [`help`], [`palette`]: status line and messages, the help overlay and colours;
-//! - [`files`]: dialogs and writers; [`watch`]: scripted watching for reports and pictures;
+//! - [`files`]: dialogs and writers; [`watch`]: scripted watching for reports and pictures,
+//!   driven each frame by [`scripted`];
 //! - [`window`]: opening the native window.
 
 pub mod app;
@@ -28,16 +31,20 @@ pub mod menu_bar;
 pub mod palette;
 pub mod panels;
 pub mod particle_view;
+pub mod pending;
 pub mod persist;
 pub mod plots;
+pub mod scripted;
 pub mod series;
 pub mod setup_form;
 pub mod shortcuts;
 pub mod slab_view;
+pub mod start;
 pub mod status;
 pub mod tuning_panel;
 pub mod unit_field;
 pub mod watch;
 pub mod window;
 
-pub use app::{NoblescopeApp, StartOptions};
+pub use app::NoblescopeApp;
+pub use start::{BUNDLED_NAME, BUNDLED_SCENARIO, StartOptions, bundled_setup};

@@ -2,9 +2,9 @@
 //! file, the view settings and whether the form is open; and the start state made from the start
 //! options and what was remembered.
 
-use super::app::{StartOptions, bundled_setup};
 use super::particle_view::{ViewMode, ViewSettings};
 use super::setup_form::SetupForm;
+use super::start::{StartOptions, bundled_setup};
 use super::watch::StartView;
 use crate::io::setup::Setup;
 use std::path::{Path, PathBuf};

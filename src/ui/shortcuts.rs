@@ -3,10 +3,10 @@
 //! does when they are pressed.
 
 use super::app::NoblescopeApp;
-use super::file_actions::Ask;
 use super::files;
 use super::leave::Leave;
 use super::particle_view::ViewMode;
+use super::pending::Ask;
 use crate::engine::Command;
 use egui::{Key, KeyboardShortcut, ModifierNames, Modifiers};
 

@@ -1,6 +1,7 @@
 //! Opening the native window (eframe with the glow backend).
 
-use super::app::{NoblescopeApp, StartOptions};
+use super::app::NoblescopeApp;
+use super::start::StartOptions;
 
 /// Why the window could not be shown.
 #[derive(Debug, thiserror::Error)]
