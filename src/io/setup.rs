@@ -1,6 +1,7 @@
 //! Setup files (RON): the schema a user writes, its validation, and its reduction to a
 //! [`SimulationSpec`] in reduced units.
 
+use crate::io::numbers::{format_limit, format_number};
 use crate::physics::lattice::whole_counts;
 use crate::physics::{PotentialMode, SimulationSpec, Species, Thermostat, UnitSystem};
 use serde::{Deserialize, Serialize};
@@ -268,7 +269,7 @@ impl Setup {
             file: file.clone(),
             message,
         };
-        let bytes = crate::io::checkpoint::read_capped(path, MAX_SETUP_BYTES)
+        let bytes = super::capped_read::read_capped(path, MAX_SETUP_BYTES)
             .map_err(|e| read(e.to_string()))?
             .map_err(|size| {
                 read(format!(
@@ -415,7 +416,7 @@ impl Setup {
         let density = self.reduced_density(self.density)?;
         in_range(
             "density",
-            format!("{:?} = {density:.5} reduced", self.density),
+            format!("{:?} = {} reduced", self.density, format_limit(density)),
             density,
             DENSITY_RANGE_REDUCED.0,
             DENSITY_RANGE_REDUCED.1,
@@ -424,7 +425,7 @@ impl Setup {
         let temperature = self.reduced_temperature("temperature", self.temperature)?;
         in_range(
             "temperature",
-            format!("{:?} = {temperature:.5} reduced", self.temperature),
+            format!("{:?} = {} reduced", self.temperature, format_limit(temperature)),
             temperature,
             TEMPERATURE_RANGE_REDUCED.0,
             TEMPERATURE_RANGE_REDUCED.1,
@@ -433,7 +434,7 @@ impl Setup {
         let dt = self.reduced_duration("timestep", self.timestep)?;
         in_range(
             "timestep",
-            format!("{:?} = {dt:.6} τ", self.timestep),
+            format!("{:?} = {} τ", self.timestep, format_limit(dt)),
             dt,
             TIMESTEP_RANGE_TAU.0,
             TIMESTEP_RANGE_TAU.1,
@@ -442,7 +443,7 @@ impl Setup {
         let cutoff = self.reduced_length("cutoff", self.cutoff)?;
         in_range(
             "cutoff",
-            format!("{:?} = {cutoff:.4} σ", self.cutoff),
+            format!("{:?} = {} σ", self.cutoff, format_limit(cutoff)),
             cutoff,
             CUTOFF_RANGE_SIGMA.0,
             CUTOFF_RANGE_SIGMA.1,
@@ -451,7 +452,7 @@ impl Setup {
         let skin = self.reduced_length("skin", self.skin)?;
         in_range(
             "skin",
-            format!("{:?} = {skin:.4} σ", self.skin),
+            format!("{:?} = {} σ", self.skin, format_limit(skin)),
             skin,
             SKIN_RANGE_SIGMA.0,
             SKIN_RANGE_SIGMA.1,
@@ -465,7 +466,7 @@ impl Setup {
                 let tau = self.reduced_duration("ensemble.relaxation", relaxation)?;
                 in_range(
                     "ensemble.relaxation",
-                    format!("{relaxation:?} = {tau:.5} τ"),
+                    format!("{relaxation:?} = {} τ", format_limit(tau)),
                     tau,
                     dt,
                     1e4,
@@ -482,7 +483,7 @@ impl Setup {
                 let gamma = self.reduced_rate("ensemble.friction", friction)?;
                 in_range(
                     "ensemble.friction",
-                    format!("{friction:?} = {gamma:.5} /τ"),
+                    format!("{friction:?} = {} /τ", format_limit(gamma)),
                     gamma,
                     1e-4,
                     1.0 / dt,
@@ -621,8 +622,15 @@ impl Setup {
             if let Some(limit) = s.kind.quantum_warning_below_kelvin() {
                 let kelvin = t * t_ref_k;
                 if kelvin < limit {
+                    // The temperature as the user gave it (0.0102 K, not "0 K").
+                    let given = match self.temperature {
+                        Temperature::Kelvin(k) => format!("{} K", format_number(k)),
+                        Temperature::Reduced(r) => {
+                            format!("kT/ε = {} (about {} K)", format_number(r), format_number(kelvin))
+                        }
+                    };
                     notes.push(format!(
-                        "{} at {kelvin:.0} K: classical dynamics misses quantum effects (zero-point motion, exchange) that are large here; treat results as qualitative.",
+                        "{} at {given}: classical dynamics misses quantum effects (zero-point motion, exchange) that are large here; treat results as qualitative.",
                         s.kind.label()
                     ));
                 }
