@@ -225,5 +225,8 @@ fn the_mutations_reach_the_checksum_the_validation_and_accepted_states() {
             Ok(Ok(_)) => accepted += 1,
         }
     }
-    assert!(unreadable > 200 && refused > 200 && accepted > 20, "{unreadable} {refused} {accepted}");
+    assert!(
+        unreadable > 200 && refused > 200 && accepted > 20,
+        "{unreadable} {refused} {accepted}"
+    );
 }

@@ -10,6 +10,13 @@ use super::tuning_panel::TuningAction;
 use crate::engine::Command;
 use crate::io::summary::MODEL_CAUTION;
 
+/// Narrowest the centre (atoms and the 2×2 plots) is squeezed to by the side panels, points.
+const MIN_CENTRE_WIDTH: f32 = 520.0;
+/// Narrowest setup form, points.
+const FORM_MIN_WIDTH: f32 = 300.0;
+/// Narrowest tuning panel, points.
+const TUNING_MIN_WIDTH: f32 = 380.0;
+
 impl NoblescopeApp {
     /// Draws every panel and overlay into `ui`.
     pub(super) fn panels(&mut self, ui: &mut egui::Ui) {
@@ -34,12 +41,18 @@ impl NoblescopeApp {
                     ui.label(egui::RichText::new(MODEL_CAUTION).small().weak());
                 });
             });
+        // The side panels give way before the view and plots do: each may grow only as far as
+        // leaves the centre MIN_CENTRE_WIDTH (and the other panel its minimum).
+        let total = ui.available_width();
+        let mut form_width = 0.0;
         if self.form_open {
-            egui::Panel::left("setup-form")
+            let others = if self.tuning_open { TUNING_MIN_WIDTH } else { 0.0 };
+            form_width = egui::Panel::left("setup-form")
                 .frame(bare(egui::Frame::side_top_panel(&style)))
                 .resizable(true)
                 .default_size(430.0)
-                .min_size(300.0)
+                .min_size(FORM_MIN_WIDTH)
+                .max_size((total - MIN_CENTRE_WIDTH - others).max(FORM_MIN_WIDTH))
                 .show(ui, |ui| {
                     ui.heading("Setup");
                     egui::ScrollArea::vertical().show(ui, |ui| {
@@ -48,7 +61,10 @@ impl NoblescopeApp {
                             self.apply_form(a);
                         }
                     });
-                });
+                })
+                .response
+                .rect
+                .width();
         }
         if self.tuning_open {
             self.start_scan_if_asked();
@@ -56,10 +72,13 @@ impl NoblescopeApp {
                 .frame(bare(egui::Frame::side_top_panel(&style)))
                 .resizable(true)
                 .default_size(580.0)
-                .min_size(380.0)
+                .min_size(TUNING_MIN_WIDTH)
+                .max_size((total - form_width - MIN_CENTRE_WIDTH).max(TUNING_MIN_WIDTH))
                 .show(ui, |ui| {
                     ui.heading("Timestep and cutoff tuning");
-                    egui::ScrollArea::vertical().show(ui, |ui| {
+                    // Both ways: at the panel's narrowest its tables scroll instead of spilling
+                    // over the plots.
+                    egui::ScrollArea::both().show(ui, |ui| {
                         let running = self.run.running.clone();
                         if let Some(a) = self.run.tuning.show(ui, &running) {
                             self.tuning_action(a);
@@ -83,7 +102,7 @@ impl NoblescopeApp {
                     self.view.show(ui, &self.frame, units)
                 });
                 ui.separator();
-                self.run.plots.show(ui);
+                self.run.plots.show(ui, w);
             });
         help::show(&ctx, &mut self.help_open);
         self.confirm_leave(&ctx);

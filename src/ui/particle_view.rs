@@ -390,7 +390,8 @@ impl ParticleView {
     }
 
     fn legend(&self, ui: &mut egui::Ui, frame: &Frame, units: UnitSystem) {
-        ui.horizontal(|ui| {
+        // Wrapped, so a narrow centre (both side panels open) is not widened by the legend.
+        ui.horizontal_wrapped(|ui| {
             match self.settings.colour_by {
                 ColourBy::Species => {
                     for (k, kind) in frame.kinds.iter().enumerate() {

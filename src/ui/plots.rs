@@ -207,14 +207,15 @@ impl Plots {
     }
 
     /// Draws the four plots in a 2×2 grid filling the available space.
-    pub fn show(&mut self, ui: &mut egui::Ui) {
+    pub fn show(&mut self, ui: &mut egui::Ui, width: f32) {
         let tu = self.time_unit();
         let (tunit, punit) = if self.real() {
             ("K", "bar")
         } else {
             ("kT/ε", "ε/σ³")
         };
-        let avail = ui.available_size();
+        // The width the caller measured before anything above could widen the ui.
+        let avail = egui::vec2(width.min(ui.available_width()), ui.available_height());
         let w = (avail.x - 8.0) / 2.0;
         let h = ((avail.y - 8.0) / 2.0).max(90.0);
         let target = self.target;
