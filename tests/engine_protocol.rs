@@ -190,3 +190,40 @@ fn commands_to_a_paused_engine_take_effect() {
     }
     assert_eq!(frame.len(), 500);
 }
+
+#[test]
+fn a_run_pauses_at_the_setups_steps_and_goes_on_past_them_when_asked() {
+    let h = EngineHandle::spawn(small(40, 10)).unwrap();
+    let mut seen = Vec::new();
+    assert!(wait_for(&h, &mut seen, 10, |e| matches!(
+        e,
+        Event::Started { .. }
+    )));
+    h.send(Command::Run);
+    assert!(
+        wait_for(&h, &mut seen, 20, |e| matches!(
+            e,
+            Event::ReachedSteps { steps: 40 }
+        )),
+        "no ReachedSteps event"
+    );
+    assert!(wait_for(
+        &h,
+        &mut seen,
+        5,
+        |e| matches!(e, Event::Status(s) if !s.running && s.step == 40)
+    ));
+    // Asked again, it runs on past the setup's steps without stopping again.
+    h.send(Command::Run);
+    assert!(wait_for(
+        &h,
+        &mut seen,
+        20,
+        |e| matches!(e, Event::Status(s) if s.running && s.step > 200)
+    ));
+    let stops = seen
+        .iter()
+        .filter(|e| matches!(e, Event::ReachedSteps { .. }))
+        .count();
+    assert_eq!(stops, 1);
+}

@@ -94,6 +94,12 @@ pub enum Event {
     Tuned(TuningReport),
     /// The running tuning scan was stopped on request; no results will come.
     TuneCancelled,
+    /// The run reached the setup's `steps` and paused there; a further [`Command::Run`] goes on
+    /// past them without stopping again.
+    ReachedSteps {
+        /// The setup's `steps`.
+        steps: u64,
+    },
 }
 
 /// Which command an event answers: [`Command::kind`], and [`CommandKind::Start`] for the

@@ -142,6 +142,8 @@ struct Engine {
     steps_per_second: f64,
     /// The tuning scan running beside the loop, if any.
     tune: Option<TuneJob>,
+    /// Whether the run still pauses when it reaches the setup's `steps` (once per start).
+    stop_at_steps: bool,
 }
 
 /// A tuning scan on its own thread, working on copies of the state.
@@ -202,6 +204,7 @@ impl Engine {
             last_status: Instant::now(),
             steps_per_second: 0.0,
             tune: None,
+            stop_at_steps: true,
         }
     }
 
@@ -248,6 +251,7 @@ impl Engine {
         self.rewind = RewindBuffer::new(session.simulation().system().len(), SNAPSHOT_EVERY);
         self.rewind.push(session.simulation().state());
         self.last_alarm = None;
+        self.stop_at_steps = session.simulation().step_count() < session.setup().steps;
         self.emit(Event::Started {
             setup: Box::new(session.setup().clone()),
             atoms: session.simulation().system().len(),
@@ -325,6 +329,13 @@ impl Engine {
         let step = session.simulation().step_count();
         if self.rewind.due(step) {
             self.rewind.push(session.simulation().state());
+        }
+        let steps = session.setup().steps;
+        if self.stop_at_steps && step >= steps {
+            self.stop_at_steps = false;
+            self.running = false;
+            self.emit(Event::ReachedSteps { steps });
+            self.send_status(session);
         }
     }
 

@@ -129,6 +129,12 @@ pub fn reduce(view: &mut RunView, event: Event) -> Echo {
                 "Rewound to step {step}; lower the timestep before running on."
             ));
         }
+        Event::ReachedSteps { steps } => {
+            view.status.status.running = false;
+            view.status.info(format!(
+                "Reached the setup's {steps} steps and paused. Press Run to go on past them; the run is then longer than its setup says."
+            ));
+        }
         Event::Saved(p) => view.status.info(format!("Checkpoint saved to {}", p.display())),
     }
     Echo::Nothing
