@@ -420,7 +420,11 @@ impl Setup {
             density,
             DENSITY_RANGE_REDUCED.0,
             DENSITY_RANGE_REDUCED.1,
-            "reduced density ρσ³ from 1e-6 to 1.5",
+            &format!(
+                "reduced density ρσ³ from {} to {}",
+                limit(DENSITY_RANGE_REDUCED.0),
+                limit(DENSITY_RANGE_REDUCED.1)
+            ),
         )?;
         let temperature = self.reduced_temperature("temperature", self.temperature)?;
         in_range(
@@ -429,7 +433,11 @@ impl Setup {
             temperature,
             TEMPERATURE_RANGE_REDUCED.0,
             TEMPERATURE_RANGE_REDUCED.1,
-            "reduced temperature kT/ε from 0.001 to 100",
+            &format!(
+                "reduced temperature kT/ε from {} to {}",
+                limit(TEMPERATURE_RANGE_REDUCED.0),
+                limit(TEMPERATURE_RANGE_REDUCED.1)
+            ),
         )?;
         let dt = self.reduced_duration("timestep", self.timestep)?;
         in_range(
@@ -438,7 +446,11 @@ impl Setup {
             dt,
             TIMESTEP_RANGE_TAU.0,
             TIMESTEP_RANGE_TAU.1,
-            "1e-5 τ to 0.05 τ",
+            &format!(
+                "{} τ to {} τ",
+                limit(TIMESTEP_RANGE_TAU.0),
+                limit(TIMESTEP_RANGE_TAU.1)
+            ),
         )?;
         let cutoff = self.reduced_length("cutoff", self.cutoff)?;
         in_range(
@@ -447,7 +459,11 @@ impl Setup {
             cutoff,
             CUTOFF_RANGE_SIGMA.0,
             CUTOFF_RANGE_SIGMA.1,
-            "1 σ to 10 σ",
+            &format!(
+                "{} σ to {} σ",
+                limit(CUTOFF_RANGE_SIGMA.0),
+                limit(CUTOFF_RANGE_SIGMA.1)
+            ),
         )?;
         let skin = self.reduced_length("skin", self.skin)?;
         in_range(
@@ -456,7 +472,11 @@ impl Setup {
             skin,
             SKIN_RANGE_SIGMA.0,
             SKIN_RANGE_SIGMA.1,
-            "0 σ to 2 σ",
+            &format!(
+                "{} σ to {} σ",
+                limit(SKIN_RANGE_SIGMA.0),
+                limit(SKIN_RANGE_SIGMA.1)
+            ),
         )?;
         let thermostat = match self.ensemble {
             Ensemble::Nve => Thermostat::None,
@@ -638,6 +658,13 @@ impl Setup {
         }
         notes
     }
+}
+
+/// A limit as written in the allowed range of an error: shortest round-trip form without a
+/// trailing ".0" (1e-5, 0.05, 10).
+fn limit(v: f64) -> String {
+    let t = format!("{v:?}");
+    t.strip_suffix(".0").map(str::to_string).unwrap_or(t)
 }
 
 fn in_range(field: &str, shown: String, v: f64, lo: f64, hi: f64, allowed: &str) -> Result<(), SetupError> {
