@@ -342,3 +342,24 @@ fn large_box_with_many_cells_and_slabs() {
     };
     check_forces(&c, 2).unwrap();
 }
+
+#[test]
+fn a_pair_just_beyond_the_reach_never_spans_two_slabs_of_one_phase() {
+    // Six slabs barely thicker than the reach (by 1e-7 of it): a pair a little longer than the
+    // reach, within the search's margin, from the top of slab 0 to the bottom of slab 2. Slabs
+    // 0 and 3 run in the same phase; had the pair been listed across two slab boundaries, both
+    // would write atoms of slab 1 or 2 at once (slabs are sized by the reach plus the margin).
+    let (rc, skin) = (2.5, 0.3);
+    let reach = rc + skin;
+    let l = 6.0 * reach * (1.0 + 1e-7);
+    let slab = l / 6.0;
+    let z0 = slab - 1e-6;
+    let positions = vec![
+        [1.0, 1.0, z0],
+        [1.0, 1.0, z0 + reach + 4e-5],
+        [5.0, 5.0, 4.0 * slab + 1.0],
+    ];
+    let mut list = NeighbourList::new(rc, skin);
+    list.build(&positions, l);
+    check_slabs(&list, positions.len()).unwrap();
+}

@@ -348,7 +348,10 @@ impl NeighbourList {
     }
 
     fn build_slabs(&mut self, l: f64) {
-        let fit = (l / self.reach).floor() as usize;
+        // Slabs at least the reach plus twice the search margin thick: a pair listed a hair
+        // beyond the reach (the search is conservative) must still join adjacent slabs only,
+        // or two slabs of one phase could write the same atom.
+        let fit = (l / (self.reach + 2.0 * margin(l))).floor() as usize;
         let slabs = if fit >= 3 { fit - fit % 3 } else { 1 };
         let pos = &self.reference;
         counting_sort(
