@@ -11,29 +11,10 @@
 //! `io::energy_log::HEADER`. The XYZ layout (count line, comment line, one line per atom) is the
 //! common XYZ convention (from memory; no formal standard exists).
 
+mod command_line;
+use command_line::{noblescope, text};
+
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
-
-fn scratch(name: &str) -> PathBuf {
-    let d = Path::new(env!("CARGO_TARGET_TMPDIR")).join(format!("bad-input-{name}-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    std::fs::create_dir_all(&d).unwrap();
-    d
-}
-
-fn noblescope(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_noblescope"))
-        .args(args)
-        .output()
-        .unwrap()
-}
-
-fn text(o: &Output) -> (String, String) {
-    (
-        String::from_utf8_lossy(&o.stdout).into_owned(),
-        String::from_utf8_lossy(&o.stderr).into_owned(),
-    )
-}
 
 /// A valid reduced-LJ setup; each bad case replaces one line of it. Line numbers matter for the
 /// parse-error cases: `atoms` is on line 4, `density` on line 5.
@@ -507,4 +488,8 @@ fn endless_or_oversized_setup_files_are_refused_naming_file_size_and_maximum() {
     std::fs::write(&big, &body).unwrap();
     assert!(noblescope::io::Setup::load(&big).is_ok());
     let _ = std::fs::remove_dir_all(&dir);
+}
+
+fn scratch(name: &str) -> PathBuf {
+    command_line::scratch("bad-input", name)
 }

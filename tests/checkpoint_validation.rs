@@ -10,25 +10,13 @@
 //! The state point is a common-practice dense liquid (ρ* = 0.8, T* = 1.1), chosen only to give a
 //! small valid run; the Langevin friction bound (at most one per timestep) is `Setup::resolve`'s.
 
+mod command_line;
+use command_line::noblescope;
+
 use noblescope::io::Setup;
 use noblescope::io::checkpoint::{Checkpoint, MAX_CHECKPOINT_BYTES};
 use noblescope::physics::{Simulation, Species, Thermostat};
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
-
-fn scratch(name: &str) -> PathBuf {
-    let d = Path::new(env!("CARGO_TARGET_TMPDIR")).join(format!("ckcheck-{name}-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    std::fs::create_dir_all(&d).unwrap();
-    d
-}
-
-fn noblescope(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_noblescope"))
-        .args(args)
-        .output()
-        .unwrap()
-}
 
 const ATOMS: usize = 256;
 const STEPS: u64 = 100;
@@ -367,4 +355,8 @@ fn a_checkpoint_file_larger_than_any_checkpoint_is_refused_without_reading_it() 
         );
     }
     let _ = std::fs::remove_dir_all(&dir);
+}
+
+fn scratch(name: &str) -> PathBuf {
+    command_line::scratch("ckcheck", name)
 }

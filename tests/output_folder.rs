@@ -5,22 +5,11 @@
 //! earlier complete one; nothing is written through a symbolic link; leftovers of a killed run
 //! are cleaned by the next run into the same folder. Exit codes as in `tests/bad_input.rs`.
 
+mod command_line;
+use command_line::noblescope;
+
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output, Stdio};
-
-fn scratch(name: &str) -> PathBuf {
-    let d = Path::new(env!("CARGO_TARGET_TMPDIR")).join(format!("out-folder-{name}-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    std::fs::create_dir_all(&d).unwrap();
-    d
-}
-
-fn noblescope(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_noblescope"))
-        .args(args)
-        .output()
-        .unwrap()
-}
 
 fn setup(dir: &Path, name: &str, extra: &str, steps: u64) -> PathBuf {
     let text = format!(
@@ -230,4 +219,8 @@ fn a_link_as_the_output_folder_is_refused_with_exit_2_and_the_users_files_are_ke
         names(&mine),
         ["energy.csv", "final.checkpoint", "summary.json", "thesis.tex"]
     );
+}
+
+fn scratch(name: &str) -> PathBuf {
+    command_line::scratch("out-folder", name)
 }
