@@ -16,23 +16,8 @@ fi
 out=screenshots
 mkdir -p "$out"
 
-xvfb_pid=""
-cleanup() { if [[ -n "$xvfb_pid" ]]; then kill "$xvfb_pid" 2>/dev/null || true; fi; }
-trap cleanup EXIT
-if [[ -z "${DISPLAY:-}" ]]; then
-    for n in 97 98 99 100 101; do
-        if [[ ! -e /tmp/.X11-unix/X$n && ! -e /tmp/.X$n-lock ]]; then
-            Xvfb ":$n" -screen 0 1600x1000x24 -nolisten tcp >/dev/null 2>&1 &
-            xvfb_pid=$!
-            export DISPLAY=":$n"
-            break
-        fi
-    done
-    [[ -n "$xvfb_pid" ]] || { echo "no free X display number for Xvfb" >&2; exit 1; }
-    for _ in $(seq 50); do [[ -e "/tmp/.X11-unix/X${DISPLAY#:}" ]] && break; sleep 0.1; done
-fi
-# Software OpenGL; one rasteriser thread keeps a core free for the simulation.
-export LIBGL_ALWAYS_SOFTWARE=1 GALLIUM_DRIVER=llvmpipe LP_NUM_THREADS=1
+# Xvfb (unless $DISPLAY is set) and software OpenGL with one rasteriser thread.
+source scripts/xvfb.sh 97 98 99 100 101
 
 fail=0
 shot() { # name setup frames view [extra args...]

@@ -63,22 +63,7 @@ wait "$pid"
 flat headless "$out/headless-rss.txt"
 
 echo "== window: $minutes minutes at 32,000 atoms"
-xvfb_pid=""
-cleanup() { if [[ -n "$xvfb_pid" ]]; then kill "$xvfb_pid" 2>/dev/null || true; fi; }
-trap cleanup EXIT
-if [[ -z "${DISPLAY:-}" ]]; then
-    for n in 87 88 89 90; do
-        if [[ ! -e /tmp/.X11-unix/X$n && ! -e /tmp/.X$n-lock ]]; then
-            Xvfb ":$n" -screen 0 1600x1000x24 -nolisten tcp >/dev/null 2>&1 &
-            xvfb_pid=$!
-            export DISPLAY=":$n"
-            break
-        fi
-    done
-    [[ -n "$xvfb_pid" ]] || { echo "no free X display number for Xvfb" >&2; exit 1; }
-    sleep 1
-fi
-export LIBGL_ALWAYS_SOFTWARE=1 GALLIUM_DRIVER=llvmpipe LP_NUM_THREADS=1
+source scripts/xvfb.sh 87 88 89 90
 # 40 frames a second; the window closes itself after the last frame.
 frames=$((minutes * 60 * 40))
 "$bin" watch assets/reduced-liquid-32k.ron --run --view 3d --size 1440x900 --frames "$frames" \
