@@ -121,6 +121,22 @@ pub enum Cmd {
         #[arg(long)]
         stages: bool,
     },
+    /// Pressure, residual energy, compressibility factor and region of the Lennard-Jones fluid
+    /// from the equation of state of Thol et al. (2016).
+    Eos {
+        /// Temperature: reduced (T*), or with --species a value in kelvin, e.g. 90K.
+        #[arg(long, allow_hyphen_values = true)]
+        temperature: String,
+        /// Density: reduced (ρ*), or with --species a value in g/cm3, kg/m3 or /nm3, e.g. 1.40g/cm3.
+        #[arg(long, allow_hyphen_values = true)]
+        density: String,
+        /// Print JSON (all values reduced; `si` beside them with a real species).
+        #[arg(long)]
+        json: bool,
+        /// Species whose units values may carry (as in setup files, or lower case), e.g. argon.
+        #[arg(long)]
+        species: Option<String>,
+    },
 }
 
 /// A `--size` that is not WIDTHxHEIGHT within the allowed range.

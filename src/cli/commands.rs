@@ -10,6 +10,8 @@ use noblescope::engine::tuning::{self, TuneError, TuneInput, TuneRequest};
 use noblescope::engine::{Session, bench};
 use noblescope::io::Setup;
 use noblescope::io::checkpoint::Checkpoint;
+use noblescope::physics::lj_eos::{self, Eos};
+use noblescope::physics::{Species, UnitSystem};
 use noblescope::ui::StartOptions;
 use noblescope::ui::watch::WatchPlan;
 use std::path::{Path, PathBuf};
@@ -108,6 +110,12 @@ pub fn run(cmd: Cmd) -> Result<Next, CliError> {
             set_threads(threads)?;
             bench(&atoms, steps, warmup, json.as_deref(), stages)?;
         }
+        Cmd::Eos {
+            temperature,
+            density,
+            json,
+            species,
+        } => eos(&temperature, &density, json, species.as_deref())?,
     }
     Ok(Next::Done)
 }
@@ -259,6 +267,123 @@ fn bench(
     if let Some(path) = json {
         let text = serde_json::to_string_pretty(&results).map_err(|e| CliError::Failed(e.to_string()))?;
         std::fs::write(path, text).map_err(|e| CliError::Failed(format!("{}: {e}", path.display())))?;
+    }
+    Ok(())
+}
+
+/// `--species`: a species as spelled in setup files ("Argon", "ReducedLJ") or its name in lower
+/// case ("argon", "reduced lj", "reducedlj").
+fn parse_species(text: &str) -> Result<Species, CliError> {
+    let t = text.trim().to_lowercase();
+    Species::ALL
+        .into_iter()
+        .find(|s| format!("{s:?}").to_lowercase() == t || s.label() == t)
+        .ok_or_else(|| {
+            let names: Vec<String> = Species::ALL.iter().map(|s| format!("{s:?}")).collect();
+            CliError::BadInput(format!(
+                "--species: \"{text}\" is not a species; allowed: {} (or lower case)",
+                names.join(", ")
+            ))
+        })
+}
+
+/// A number with an optional unit suffix: (value, suffix).
+fn split_unit<'a>(
+    flag: &str,
+    text: &'a str,
+    units: &[&'a str],
+    allowed: &str,
+) -> Result<(f64, &'a str), CliError> {
+    let t = text.trim();
+    let (num, unit) = units
+        .iter()
+        .find_map(|u| t.strip_suffix(u).map(|n| (n.trim_end(), *u)))
+        .unwrap_or((t, ""));
+    let v: f64 = num.parse().map_err(|_| {
+        CliError::BadInput(format!(
+            "--{flag}: \"{text}\" is not a number; allowed: {allowed}"
+        ))
+    })?;
+    if !v.is_finite() || v <= 0.0 {
+        return Err(CliError::BadInput(format!(
+            "--{flag}: {text} is out of range; allowed: {allowed}"
+        )));
+    }
+    Ok((v, unit))
+}
+
+/// `eos`: the inputs in reduced units, the properties and the region, printed or as JSON.
+fn eos(temperature: &str, density: &str, json: bool, species: Option<&str>) -> Result<(), CliError> {
+    let species = species.map(parse_species).transpose()?;
+    let units = species.map(UnitSystem::new).filter(|u| u.has_real_units());
+    let t_allowed = format!(
+        "a reduced temperature above 0 and at most {}{}",
+        lj_eos::T_INPUT_MAX,
+        if units.is_some() {
+            ", or kelvin as in 90K"
+        } else {
+            " (values in K need --species with real units)"
+        }
+    );
+    let rho_allowed = format!(
+        "a reduced density above 0 and at most {}{}",
+        lj_eos::RHO_INPUT_MAX,
+        if units.is_some() {
+            ", or g/cm3, kg/m3 or /nm3 as in 1.40g/cm3"
+        } else {
+            " (values in g/cm3, kg/m3 or /nm3 need --species with real units)"
+        }
+    );
+    let (tv, tu) = split_unit("temperature", temperature, &["K"], &t_allowed)?;
+    let (dv, du) = split_unit("density", density, &["g/cm3", "kg/m3", "/nm3"], &rho_allowed)?;
+    let need_units = |flag: &str, text: &str, allowed: &str| {
+        CliError::BadInput(format!(
+            "--{flag}: {text} has a unit but no --species with real units is given; allowed: {allowed}"
+        ))
+    };
+    let t_red = match (tu, units) {
+        ("", _) => tv,
+        (_, Some(u)) => tv / u.temperature_kelvin(),
+        (_, None) => return Err(need_units("temperature", temperature, &t_allowed)),
+    };
+    let rho_red = match (du, units) {
+        ("", _) => dv,
+        ("g/cm3", Some(u)) => dv / u.mass_density_g_cm3(),
+        ("kg/m3", Some(u)) => dv * 1e-3 / u.mass_density_g_cm3(),
+        (_, Some(u)) => dv / u.number_density_per_nm3(),
+        (_, None) => return Err(need_units("density", density, &rho_allowed)),
+    };
+    let refuse = |e: lj_eos::EosError, text: &str| {
+        CliError::BadInput(match e {
+            lj_eos::EosError::OutOfRange {
+                field,
+                value,
+                allowed,
+            } => {
+                format!("--{field}: {text} (reduced {value}) is out of range; allowed: {allowed}")
+            }
+            other => other.to_string(),
+        })
+    };
+    let props = Eos::properties(t_red, rho_red).map_err(|e| {
+        let text = if matches!(
+            &e,
+            lj_eos::EosError::OutOfRange {
+                field: "temperature",
+                ..
+            }
+        ) {
+            temperature
+        } else {
+            density
+        };
+        refuse(e, text)
+    })?;
+    let region = Eos::region(t_red, rho_red).map_err(|e| refuse(e, density))?;
+    if json {
+        output::eos_json(&props, region, units.as_ref());
+    } else {
+        output::eos_text(&props, region, units.as_ref());
     }
     Ok(())
 }

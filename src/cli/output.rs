@@ -5,6 +5,8 @@ use noblescope::engine::tuning::{FLUCTUATION_LIMIT, TuneInput, TuningReport};
 use noblescope::io::Setup;
 use noblescope::io::setup::Length;
 use noblescope::io::summary::{MODEL_CAUTION, Summary};
+use noblescope::physics::UnitSystem;
+use noblescope::physics::lj_eos::{self, Properties, Region};
 use std::path::Path;
 
 /// The summary of a finished run, written to `out`.
@@ -187,4 +189,75 @@ pub fn bench_stages(r: &StageReport) {
         r.step_seconds() * 1e3,
         r.step_seconds() * 1e9 / r.atoms as f64
     );
+}
+
+/// Where `eos` takes its values from, for both outputs.
+const EOS_SOURCE: &str = "Lennard-Jones 12-6 equation of state of Thol, Rutkai, Köster, Lustig, Span & Vrabec, J. Phys. Chem. Ref. Data 45, 023101 (2016)";
+
+/// `eos` as text: reduced values, SI beside them with a real species, region and caution.
+pub fn eos_text(p: &Properties, region: Region, units: Option<&UnitSystem>) {
+    println!("{EOS_SOURCE}");
+    match units {
+        Some(u) => println!(
+            "  state                      T* = {:.6} ({:.3} K), rho* = {:.6} ({:.5} g/cm³, {} reference)",
+            p.temperature,
+            p.temperature * u.temperature_kelvin(),
+            p.density,
+            p.density * u.mass_density_g_cm3(),
+            u.reference.label()
+        ),
+        None => println!(
+            "  state                      T* = {:.6}, rho* = {:.6}",
+            p.temperature, p.density
+        ),
+    }
+    let si = |x: f64, scale: Option<f64>, unit: &str| match scale {
+        Some(s) => format!("  = {:.6} {unit}", x * s),
+        None => String::new(),
+    };
+    println!(
+        "  pressure                   {:.10} ε/σ³{}",
+        p.pressure,
+        si(p.pressure, units.map(|u| u.pressure_bar()), "bar")
+    );
+    println!(
+        "  residual energy per atom   {:.10} ε{}",
+        p.residual_energy,
+        si(p.residual_energy, units.map(|u| u.energy_kj_mol()), "kJ/mol")
+    );
+    println!("  compressibility factor     {:.10}", p.compressibility_factor);
+    println!("  region                     {}", region.word());
+    println!(
+        "  (validated for {:.3} <= T* <= {:.2} and p* <= {:.2}, i.e. 0.5-7 T_c and 500 p_c)",
+        lj_eos::T_MIN_VALID,
+        lj_eos::T_MAX_VALID,
+        lj_eos::Eos::max_valid_pressure()
+    );
+    println!("  {MODEL_CAUTION}");
+}
+
+/// `eos --json`: reduced values at the top level, `si` beside them with a real species.
+pub fn eos_json(p: &Properties, region: Region, units: Option<&UnitSystem>) {
+    let mut doc = serde_json::json!({
+        "pressure": p.pressure,
+        "residual_energy": p.residual_energy,
+        "compressibility_factor": p.compressibility_factor,
+        "region": region.word(),
+        "temperature": p.temperature,
+        "density": p.density,
+        "residual_chemical_potential": p.residual_chemical_potential,
+        "units": "reduced LJ units (epsilon, sigma, k_B = 1)",
+        "source": EOS_SOURCE,
+        "caution": MODEL_CAUTION,
+    });
+    if let Some(u) = units {
+        doc["si"] = serde_json::json!({
+            "species": u.reference.label(),
+            "temperature_kelvin": p.temperature * u.temperature_kelvin(),
+            "density_g_cm3": p.density * u.mass_density_g_cm3(),
+            "pressure_bar": p.pressure * u.pressure_bar(),
+            "residual_energy_kj_mol": p.residual_energy * u.energy_kj_mol(),
+        });
+    }
+    println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
 }

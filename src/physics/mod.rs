@@ -3,6 +3,7 @@
 pub mod forces;
 pub mod geometry;
 pub mod lattice;
+pub mod lj_eos;
 pub mod neighbours;
 pub mod observables;
 pub mod parallel;
