@@ -4,7 +4,7 @@
 //! and in reduced units for the reduced fluid.
 
 use super::palette;
-use super::plots::nice_grid;
+use super::plots::{nice_grid, tick_label};
 use super::unit_field::{LengthUnit, Quantity, format_number};
 use crate::engine::Command;
 use crate::engine::tuning::{
@@ -765,20 +765,7 @@ fn small_plot(id: &str, width: f32, x: String, y: &str, legend: Corner) -> Plot<
         .y_axis_min_width(56.0)
         .show_background(false)
         .y_grid_spacer(nice_grid)
-        .y_axis_formatter(|m, _| axis_label(m))
-}
-
-/// Axis numbers with as many decimals as the grid step needs (scientific below 1e-4).
-fn axis_label(m: egui_plot::GridMark) -> String {
-    if m.value.abs() < m.step_size * 1e-6 {
-        return "0".into();
-    }
-    let decimals = (-m.step_size.log10().floor()).max(0.0) as usize;
-    if decimals > 4 {
-        format!("{:.1e}", m.value)
-    } else {
-        format!("{:.decimals$}", m.value)
-    }
+        .y_axis_formatter(|m, _| tick_label(m))
 }
 
 #[cfg(test)]
