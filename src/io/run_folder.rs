@@ -242,11 +242,6 @@ impl StagedRun {
         &self.staging
     }
 
-    /// Where the files will be once committed.
-    pub fn destination(&self) -> &Path {
-        &self.out
-    }
-
     /// Creates a new file `name` in the staging folder (never opens an existing file or link).
     pub fn create(&self, name: &str) -> io::Result<fs::File> {
         fs::OpenOptions::new()
