@@ -28,6 +28,11 @@ pub struct RunFlags {
     /// Replace the files of an earlier run in the output folder.
     #[arg(long)]
     pub overwrite: bool,
+    /// Stop once this quantity's standard error (reduced units) is reached after the detected
+    /// equilibration start, e.g. pressure=0.005; repeat or separate with commas for more.
+    /// Quantities: temperature, pressure, potential_energy, total_energy, conserved_energy.
+    #[arg(long = "until-stderr", value_name = "QUANTITY=STDERR", value_delimiter = ',')]
+    pub until_stderr: Vec<String>,
 }
 
 // The subcommands.

@@ -3,8 +3,10 @@
 pub mod capped_read;
 pub mod checkpoint;
 mod checkpoint_check;
+pub mod checkpoint_samples;
 pub mod energy_log;
 pub mod numbers;
+pub mod precision_setting;
 pub mod rdf_csv;
 pub mod run_folder;
 pub mod setup;

@@ -2,6 +2,7 @@
 //! [`SimulationSpec`] in reduced units.
 
 use crate::io::numbers::{format_limit, format_number};
+use crate::io::precision_setting::PrecisionSetting;
 use crate::physics::lattice::whole_counts;
 use crate::physics::{PotentialMode, SimulationSpec, Species, Thermostat, UnitSystem};
 use serde::{Deserialize, Serialize};
@@ -149,6 +150,10 @@ pub struct Setup {
     /// steps, from `equilibration_steps` on; g(r) reaches out to the cutoff.
     #[serde(default)]
     pub rdf_every: Option<u64>,
+    /// Stop once these standard errors are reached after the detected equilibration start
+    /// (`steps` stays the upper limit); see [`crate::io::precision_setting`].
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub precision_targets: Vec<PrecisionSetting>,
 }
 
 fn default_skin() -> Length {
@@ -540,6 +545,7 @@ impl Setup {
                 return Err(SetupError::field(name, "Some(0)", "None or Some(n) with n ≥ 1"));
             }
         }
+        self.precision_targets_reduced()?;
         let shares: Vec<f64> = self.species.iter().map(|s| s.share).collect();
         let spec = SimulationSpec {
             kinds: self.species.iter().map(|s| s.kind).collect(),

@@ -8,6 +8,7 @@
 
 use super::palette;
 use super::unit_field::{DensityUnit, LengthUnit, RateUnit, TemperatureUnit, TimeUnit, UnitField};
+use crate::io::precision_setting::PrecisionSetting;
 use crate::io::setup::{Ensemble, Setup, SetupError, SpeciesShare, ThermostatChoice};
 use crate::physics::{PotentialMode, Species};
 use std::collections::BTreeMap;
@@ -66,6 +67,8 @@ pub struct SetupForm {
     pub trajectory_every: Option<u64>,
     /// Kept from the loaded setup (not edited in the form).
     pub rdf_every: Option<u64>,
+    /// Kept from the loaded setup (not edited in the form; shown in the statistics panel).
+    pub precision_targets: Vec<PrecisionSetting>,
     /// The setup Apply last refused because it does not fit in memory, and why; shown at the
     /// atoms field while the form still describes that setup.
     pub memory_refusal: Option<(Setup, SetupError)>,
@@ -155,6 +158,7 @@ impl SetupForm {
             sample_every: s.sample_every.to_string(),
             trajectory_every: s.trajectory_every,
             rdf_every: s.rdf_every,
+            precision_targets: s.precision_targets.clone(),
             memory_refusal: None,
         }
     }
@@ -261,6 +265,7 @@ impl SetupForm {
             sample_every,
             trajectory_every: self.trajectory_every,
             rdf_every: self.rdf_every,
+            precision_targets: self.precision_targets.clone(),
         };
         (setup, errors)
     }
