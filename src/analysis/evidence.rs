@@ -164,13 +164,15 @@ fn verdict_of(stats: &SeriesStatistics, start_fraction: f64, automatic: bool, fr
             fraction: start_fraction,
         });
     }
+    // A drift is named before the shortage of independent samples it causes (a trend makes g
+    // large): "still drifting" says what to do, wait.
+    if stats.thirds.is_some_and(|t| t.drifting) {
+        return Verdict::StillDrifting;
+    }
     if stats.effective_samples < MIN_EFFECTIVE_SAMPLES {
         return Verdict::NotYet(NotYetReason::FewIndependent {
             effective: stats.effective_samples,
         });
-    }
-    if stats.thirds.is_some_and(|t| t.drifting) {
-        return Verdict::StillDrifting;
     }
     Verdict::Equilibrated {
         from_time,
