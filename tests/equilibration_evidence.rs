@@ -217,7 +217,12 @@ fn a_slow_linear_trend_is_flagged_and_white_noise_passes_at_the_threshold_rate()
         "white noise flagged as drifting: {flagged} of {trials} ({:.2} %)",
         rate * 100.0
     );
-    assert!(DRIFT_SIGMAS == 3.0);
+    const {
+        assert!(
+            DRIFT_SIGMAS == 3.0,
+            "the rate above is for 3 combined standard errors"
+        )
+    };
     assert!(
         flagged <= 25,
         "white noise flagged {flagged} of {trials} ({:.2} %)",

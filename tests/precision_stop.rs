@@ -54,7 +54,13 @@ fn a_precision_target_stops_the_run_early_and_a_continued_run_stops_at_the_same_
     let target = "precision_targets: [(quantity: Pressure, stderr: Reduced(0.02))],";
     let s = reduced_liquid(&d, "liquid", target);
     let whole = d.join("whole");
-    let o = noblescope(&["run", s.to_str().unwrap(), "--out", whole.to_str().unwrap(), "--quiet"]);
+    let o = noblescope(&[
+        "run",
+        s.to_str().unwrap(),
+        "--out",
+        whole.to_str().unwrap(),
+        "--quiet",
+    ]);
     assert_eq!(o.status.code(), Some(0), "{:?}", text(&o));
     let a = summary(&whole);
     assert_eq!(a["stopped_because"], "precision");
@@ -81,7 +87,10 @@ fn a_precision_target_stops_the_run_early_and_a_continued_run_stops_at_the_same_
     ]);
     assert_eq!(o.status.code(), Some(0), "{:?}", text(&o));
     let b = summary(&half);
-    assert_eq!(b["stopped_because"], "steps", "the half run must not be precise enough already");
+    assert_eq!(
+        b["stopped_because"], "steps",
+        "the half run must not be precise enough already"
+    );
     let rest = d.join("rest");
     let o = noblescope(&[
         "resume",
@@ -93,7 +102,11 @@ fn a_precision_target_stops_the_run_early_and_a_continued_run_stops_at_the_same_
     assert_eq!(o.status.code(), Some(0), "{:?}", text(&o));
     let c = summary(&rest);
     assert_eq!(c["stopped_because"], "precision");
-    assert_eq!(c["steps"].as_u64().unwrap(), stop, "continued run stopped elsewhere");
+    assert_eq!(
+        c["steps"].as_u64().unwrap(),
+        stop,
+        "continued run stopped elsewhere"
+    );
     // Same samples, same statistics, bit for bit.
     assert_eq!(c["quantities"], a["quantities"]);
 }
@@ -161,7 +174,13 @@ fn summary_lists_every_quantity_and_the_equation_of_state_for_one_species() {
         "conserved_energy_per_atom",
     ] {
         let q = &v["quantities"][key];
-        for field in ["mean", "stderr", "statistical_inefficiency", "effective_samples", "start_step"] {
+        for field in [
+            "mean",
+            "stderr",
+            "statistical_inefficiency",
+            "effective_samples",
+            "start_step",
+        ] {
             assert!(q[field].is_number(), "{key}.{field}: {q}");
         }
         assert!(q["drifting"].is_boolean(), "{key}.drifting");
@@ -178,7 +197,9 @@ fn summary_lists_every_quantity_and_the_equation_of_state_for_one_species() {
     let p_run = eos["run_full_potential_pressure"]["mean"].as_f64().unwrap();
     assert!((p_run - p_eos).abs() < 0.15, "p run {p_run} vs equation {p_eos}");
     let u_eos = eos["residual_energy"].as_f64().unwrap();
-    let u_run = eos["run_full_potential_residual_energy"]["mean"].as_f64().unwrap();
+    let u_run = eos["run_full_potential_residual_energy"]["mean"]
+        .as_f64()
+        .unwrap();
     assert!((u_run - u_eos).abs() < 0.05, "u run {u_run} vs equation {u_eos}");
 }
 
@@ -194,7 +215,15 @@ fn the_equation_of_state_is_hidden_inside_the_two_phase_region_and_absent_for_mi
         "Reduced(0.9)",
     );
     let out = d.join("two-phase");
-    let o = noblescope(&["run", s.to_str().unwrap(), "--out", out.to_str().unwrap(), "--quiet", "--steps", "500"]);
+    let o = noblescope(&[
+        "run",
+        s.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+        "--quiet",
+        "--steps",
+        "500",
+    ]);
     assert_eq!(o.status.code(), Some(0), "{:?}", text(&o));
     let eos = &summary(&out)["equation_of_state"];
     assert_eq!(eos["region"], "two-phase");
@@ -210,7 +239,15 @@ fn the_equation_of_state_is_hidden_inside_the_two_phase_region_and_absent_for_mi
         "Kelvin(200.0)",
     );
     let out = d.join("blend");
-    let o = noblescope(&["run", m.to_str().unwrap(), "--out", out.to_str().unwrap(), "--quiet", "--steps", "200"]);
+    let o = noblescope(&[
+        "run",
+        m.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+        "--quiet",
+        "--steps",
+        "200",
+    ]);
     assert_eq!(o.status.code(), Some(0), "{:?}", text(&o));
     assert!(summary(&out).get("equation_of_state").is_none());
 }

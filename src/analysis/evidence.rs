@@ -8,7 +8,9 @@
 
 use super::quantity::Quantity;
 use super::sample_store::SampleStore;
-use super::series_statistics::{DetectedStart, SeriesStatistics, detect_start_bounded, statistics_from};
+use super::series_statistics::{
+    DetectedStart, SeriesStatistics, detect_start_bounded, statistics_with_scratch,
+};
 use super::suffix::RunningSums;
 use serde::{Deserialize, Serialize};
 
@@ -108,9 +110,10 @@ impl Verdict {
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct QuantityEvidence {
     pub quantity: Quantity,
-    /// This quantity's own detected start (entry index and step).
-    pub detected: DetectedStart,
-    pub detected_step: u64,
+    /// This quantity's own detected start (entry index and step), for the quantities that
+    /// decide the verdict.
+    pub detected: Option<DetectedStart>,
+    pub detected_step: Option<u64>,
     /// Statistics from the common start; `inefficiency` in stored entries (see
     /// [`QuantityEvidence::inefficiency_in_samples`]).
     pub stats: SeriesStatistics,
@@ -184,19 +187,20 @@ fn verdict_of(stats: &SeriesStatistics, start_fraction: f64, automatic: bool, fr
 /// `thermostatted` says whether a bath holds the temperature (see [`Quantity::relaxes`]).
 pub fn analyse(store: &SampleStore, choice: StartChoice, thermostatted: bool) -> Evidence {
     let n = store.len();
-    let sums: Vec<RunningSums> = Quantity::ALL
+    let sums: Vec<RunningSums> = Quantity::ALL.iter().map(|&q| store.sums(q)).collect();
+    // Only the quantities that decide need a start of their own; the others are read from the
+    // common start.
+    let detected: Vec<Option<DetectedStart>> = Quantity::ALL
         .iter()
-        .map(|&q| RunningSums::new(store.values(q)))
-        .collect();
-    let detected: Vec<DetectedStart> = Quantity::ALL
-        .iter()
-        .map(|&q| detect_start_bounded(store.values(q), &sums[q.index()]))
+        .map(|&q| {
+            q.relaxes(thermostatted)
+                .then(|| detect_start_bounded(store.values(q), &sums[q.index()]))
+        })
         .collect();
     let start_index = match choice {
         StartChoice::Automatic => Quantity::ALL
             .iter()
-            .filter(|q| q.relaxes(thermostatted))
-            .map(|q| detected[q.index()].index)
+            .filter_map(|q| detected[q.index()].map(|d| d.index))
             .max()
             .unwrap_or(0),
         StartChoice::FromTime(t) => store.index_at_time(t),
@@ -206,16 +210,17 @@ pub fn analyse(store: &SampleStore, choice: StartChoice, thermostatted: bool) ->
     let start_time = store.times().get(start_index).copied().unwrap_or(f64::NAN);
     let fraction = if n > 0 { start_index as f64 / n as f64 } else { 0.0 };
     let automatic = choice == StartChoice::Automatic;
+    let mut scratch = Vec::new();
     let rows: Vec<QuantityEvidence> = Quantity::ALL
         .iter()
         .map(|&q| {
-            let stats = statistics_from(store.values(q), &sums[q.index()], start_index);
+            let stats = statistics_with_scratch(store.values(q), &sums[q.index()], start_index, &mut scratch);
             let verdict = verdict_of(&stats, fraction, automatic, start_time);
             let d = detected[q.index()];
             QuantityEvidence {
                 quantity: q,
                 detected: d,
-                detected_step: store.steps().get(d.index).copied().unwrap_or(0),
+                detected_step: d.and_then(|d| store.steps().get(d.index).copied()),
                 stats,
                 verdict,
                 decides: q.relaxes(thermostatted),

@@ -10,6 +10,7 @@
 //! fall on an entry boundary, `width` raw samples apart.
 
 use super::quantity::{QUANTITIES, Quantity};
+use super::suffix::{KeptSums, RunningSums};
 use crate::physics::Observables;
 use serde::{Deserialize, Serialize};
 
@@ -28,7 +29,7 @@ struct Pending {
 }
 
 /// The followed quantities of every sample so far, coarsened pairwise when full.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq)]
 pub struct SampleStore {
     capacity: usize,
     /// Raw samples per finished entry.
@@ -41,6 +42,8 @@ pub struct SampleStore {
     /// Entry means, one vector per quantity in [`Quantity::ALL`] order.
     values: [Vec<f64>; QUANTITIES],
     pending: Pending,
+    /// Running sums of each quantity's entries, kept up to date as entries arrive.
+    sums: [KeptSums; QUANTITIES],
 }
 
 impl Default for SampleStore {
@@ -61,6 +64,7 @@ impl SampleStore {
             times: Vec::new(),
             values: Default::default(),
             pending: Pending::default(),
+            sums: Default::default(),
         }
     }
 
@@ -85,6 +89,11 @@ impl SampleStore {
             if self.steps.len() >= self.capacity {
                 self.coarsen();
             }
+            if self.steps.len().is_multiple_of(super::suffix::STRIDE) {
+                for (k, v) in self.sums.iter_mut().zip(&self.values) {
+                    k.extend(v);
+                }
+            }
         }
     }
 
@@ -104,6 +113,9 @@ impl SampleStore {
             v.truncate(half);
         }
         self.width *= 2;
+        for (k, v) in self.sums.iter_mut().zip(&self.values) {
+            k.rebuild(v);
+        }
     }
 
     /// Finished entries.
@@ -136,6 +148,11 @@ impl SampleStore {
         &self.values[q.index()]
     }
 
+    /// Running sums of `q`'s entries (O(1): kept up to date as entries arrive).
+    pub fn sums(&self, q: Quantity) -> RunningSums<'_> {
+        RunningSums::from_kept(&self.values[q.index()], &self.sums[q.index()])
+    }
+
     /// Step of each entry's first sample.
     pub fn steps(&self) -> &[u64] {
         &self.steps
@@ -156,6 +173,7 @@ impl SampleStore {
         self.steps.capacity() * 8
             + self.times.capacity() * 8
             + self.values.iter().map(|v| v.capacity() * 8).sum::<usize>()
+            + self.sums.iter().map(KeptSums::bytes).sum::<usize>()
     }
 }
 
@@ -197,7 +215,7 @@ impl SampleStore {
     /// the width, and a raw count that adds up.
     pub fn from_parts(p: StoreParts) -> Result<SampleStore, String> {
         let n = p.steps.len();
-        if !(4..=DEFAULT_CAPACITY).contains(&p.capacity) || p.capacity % 2 != 0 {
+        if !(4..=DEFAULT_CAPACITY).contains(&p.capacity) || !p.capacity.is_multiple_of(2) {
             return Err(format!(
                 "capacity {} (allowed: an even number from 4 to {DEFAULT_CAPACITY})",
                 p.capacity
@@ -226,6 +244,10 @@ impl SampleStore {
                 p.raw, n, p.width, p.pending_count
             ));
         }
+        let mut sums: [KeptSums; QUANTITIES] = Default::default();
+        for (k, v) in sums.iter_mut().zip(&p.values) {
+            k.rebuild(v);
+        }
         Ok(SampleStore {
             capacity: p.capacity,
             width: p.width,
@@ -239,6 +261,7 @@ impl SampleStore {
                 sums: p.pending_sums,
                 count: p.pending_count,
             },
+            sums,
         })
     }
 
@@ -254,6 +277,9 @@ impl SampleStore {
         }
         self.pending = Pending::default();
         self.raw = keep as u64 * self.width;
+        for (k, v) in self.sums.iter_mut().zip(&self.values) {
+            k.rebuild(v);
+        }
     }
 }
 

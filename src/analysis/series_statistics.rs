@@ -80,34 +80,42 @@ pub fn detect_start(
     }
     let size = (n - first).div_ceil(max_blocks.max(1)).max(1);
     let count = (n - first) / size;
-    let blocks = if size > 1 {
+    let y: Vec<f64> = if size > 1 {
         sums.block_means(first, size, count)
     } else {
-        Vec::new()
+        x[first..].to_vec()
     };
-    let stride = stride.max(1).div_ceil(size) * size;
-    let mut found = false;
-    let mut t0 = first;
-    while t0 < n - 1 {
-        let g = if size == 1 {
-            super::equilibration::statistical_inefficiency(&x[t0..], true)
-        } else {
-            let k = (t0 - first) / size;
-            let end = first + count * size;
-            if count - k < 2 {
-                break;
+    let stride_blocks = stride.max(1).div_ceil(size);
+    // Candidate starts, in blocks from `first`: pymbar's `range(0, T - 1, nskip)` on the blocks
+    // (and at least two blocks after each).
+    let starts: Vec<usize> = (0..)
+        .map(|j| j * stride_blocks)
+        .take_while(|&c| {
+            if size == 1 {
+                c + first < n - 1
+            } else {
+                c + 2 <= count
             }
+        })
+        .collect();
+    let g_blocks = inefficiencies_fast(&y, &starts);
+    let mut found = false;
+    for (&c, g_b) in starts.iter().zip(g_blocks) {
+        let t0 = first + c * size;
+        let g = if size == 1 {
+            g_b
+        } else {
+            let end = first + count * size;
             let var = sums.variance(t0, end);
-            let b = &blocks[k..];
-            let m = b.iter().sum::<f64>() / b.len() as f64;
-            let var_b = b.iter().map(|v| (v - m) * (v - m)).sum::<f64>() / b.len() as f64;
+            let yb = &y[c..];
+            let m = yb.iter().sum::<f64>() / yb.len() as f64;
+            let var_b = yb.iter().map(|v| (v - m) * (v - m)).sum::<f64>() / yb.len() as f64;
             if var <= 0.0 {
                 None
             } else if var_b <= 0.0 {
                 Some(1.0)
             } else {
-                let g_b = super::equilibration::statistical_inefficiency(b, true).unwrap_or(1.0);
-                Some((size as f64 * g_b * var_b / var).max(1.0))
+                g_b.map(|g_b| (size as f64 * g_b * var_b / var).max(1.0))
             }
         }
         .unwrap_or((n - t0 + 1) as f64);
@@ -120,9 +128,92 @@ pub fn detect_start(
             };
             found = true;
         }
-        t0 += stride;
     }
     best
+}
+
+/// The statistical inefficiency of `y[c..]` for every start `c` in `starts`, with pymbar's fast
+/// lag schedule (as [`super::equilibration::statistical_inefficiency`] with `fast`), `None`
+/// where the suffix has zero variance.
+///
+/// All suffixes share one pass over the series per lag: Σ_{i ≥ c} (y_i − m)(y_{i+t} − m) is
+/// expanded into the suffix sum of y_i y_{i+t}, taken for every start in one backward sweep,
+/// and suffix sums of y. The cost is O(n) per lag instead of O(n) per lag and start.
+fn inefficiencies_fast(y: &[f64], starts: &[usize]) -> Vec<Option<f64>> {
+    let n = y.len();
+    // Shift by the mean: keeps the expanded products well conditioned.
+    let shift = y.iter().sum::<f64>() / n as f64;
+    let z: Vec<f64> = y.iter().map(|v| v - shift).collect();
+    // suffix[k] = Σ_{i ≥ k} z_i.
+    let mut suffix = vec![0.0; n + 1];
+    for i in (0..n).rev() {
+        suffix[i] = suffix[i + 1] + z[i];
+    }
+    struct State {
+        c: usize,
+        len: usize,
+        mean: f64,
+        var: f64,
+        g: f64,
+        active: bool,
+    }
+    let mut states: Vec<State> = starts
+        .iter()
+        .map(|&c| {
+            let len = n - c;
+            let mean = suffix[c] / len as f64;
+            let var = z[c..].iter().map(|v| (v - mean) * (v - mean)).sum::<f64>() / len as f64;
+            State {
+                c,
+                len,
+                mean,
+                var,
+                g: 1.0,
+                active: var > 0.0 && len >= 2,
+            }
+        })
+        .collect();
+    let mut partial = vec![0.0; starts.len()];
+    let (mut t, mut step) = (1usize, 1usize);
+    while states.iter().any(|s| s.active && t < s.len - 1) {
+        // Σ_{i ≥ c, i + t < n} z_i z_{i+t} for each start c (starts ascend).
+        let mut acc = 0.0;
+        let mut j = starts.len();
+        let mut i = n - t;
+        while j > 0 {
+            j -= 1;
+            let c = starts[j];
+            while i > c {
+                i -= 1;
+                acc += z[i] * z[i + t];
+            }
+            partial[j] = if c < n - t { acc } else { 0.0 };
+        }
+        for (s, &q) in states.iter_mut().zip(&partial) {
+            if !s.active || t >= s.len - 1 {
+                s.active = false;
+                continue;
+            }
+            let m = s.mean;
+            let pairs = (s.len - t) as f64;
+            // Σ (z_i − m)(z_{i+t} − m) over i = c … n − 1 − t.
+            let head = suffix[s.c] - suffix[n - t];
+            let tail = suffix[s.c + t] - suffix[n];
+            let cov = q - m * head - m * tail + pairs * m * m;
+            let ct = cov / (pairs * s.var);
+            if ct <= 0.0 && t > 3 {
+                s.active = false;
+                continue;
+            }
+            s.g += 2.0 * ct * (1.0 - t as f64 / s.len as f64) * step as f64;
+        }
+        t += step;
+        step += 1;
+    }
+    states
+        .iter()
+        .map(|s| (s.var > 0.0).then_some(s.g.max(1.0)))
+        .collect()
 }
 
 /// The detection as the program runs it: the first 1 % left out, at most
@@ -177,10 +268,10 @@ pub struct SeriesStatistics {
 }
 
 /// Mean and standard error of `a..b` from its statistical inefficiency.
-fn estimate(x: &[f64], sums: &RunningSums, a: usize, b: usize, max_blocks: usize) -> (Estimate, f64) {
+fn estimate(sums: &RunningSums, a: usize, b: usize, max_blocks: usize) -> (Estimate, f64) {
     let n = b - a;
     let mean = sums.mean(a, b);
-    match sums.inefficiency(x, a, b, max_blocks, FINAL_SCHEDULE) {
+    match sums.inefficiency(a, b, max_blocks, FINAL_SCHEDULE) {
         Some(g) => (
             Estimate {
                 mean,
@@ -192,28 +283,59 @@ fn estimate(x: &[f64], sums: &RunningSums, a: usize, b: usize, max_blocks: usize
     }
 }
 
+/// Sum and sum of squares of `v − shift`, in four independent lanes.
+fn sums_of(v: &[f64], shift: f64) -> (f64, f64) {
+    let (mut a, mut b) = ([0.0f64; 4], [0.0f64; 4]);
+    let chunks = v.chunks_exact(4);
+    let rest = chunks.remainder();
+    for q in chunks {
+        for k in 0..4 {
+            let d = q[k] - shift;
+            a[k] += d;
+            b[k] += d * d;
+        }
+    }
+    for &x in rest {
+        let d = x - shift;
+        a[0] += d;
+        b[0] += d * d;
+    }
+    ((a[0] + a[1]) + (a[2] + a[3]), (b[0] + b[1]) + (b[2] + b[3]))
+}
+
 /// The block-averaging curve of `a..b`: block sizes 1, 2, 4, … while at least
-/// [`MIN_BLOCKS_SHOWN`] blocks remain.
-pub fn block_curve(sums: &RunningSums, a: usize, b: usize) -> Vec<BlockLevel> {
+/// [`MIN_BLOCKS_SHOWN`] blocks remain. `scratch` (half the stretch at most) is reused between
+/// calls, so a refresh of several series faults its memory in once.
+pub fn block_curve(sums: &RunningSums, a: usize, b: usize, scratch: &mut Vec<f64>) -> Vec<BlockLevel> {
     let n = b - a;
     let mut out = Vec::new();
-    let mut size = 1;
-    while n / size >= MIN_BLOCKS_SHOWN {
-        let m = n / size;
-        let stderr = if size == 1 {
-            // The sums give the count-divided variance σ²; s²/m = σ²/(m − 1).
-            (sums.variance(a, a + m) / (m - 1) as f64).sqrt()
-        } else {
-            let means = sums.block_means(a, size, m);
-            let mu = means.iter().sum::<f64>() / m as f64;
-            let s2 = means.iter().map(|v| (v - mu) * (v - mu)).sum::<f64>() / (m - 1) as f64;
-            (s2 / m as f64).sqrt()
-        };
-        out.push(BlockLevel {
+    if n < MIN_BLOCKS_SHOWN {
+        return out;
+    }
+    let x = &sums.series()[a..b];
+    let shift = x[0];
+    let level = |means: &[f64], size: usize| {
+        let m = means.len() as f64;
+        let (s1, s2) = sums_of(means, shift);
+        let mean = s1 / m;
+        let var = ((s2 - m * mean * mean) / (m - 1.0)).max(0.0);
+        BlockLevel {
             block_size: size,
-            blocks: m,
-            stderr,
-        });
+            blocks: means.len(),
+            stderr: (var / m).sqrt(),
+        }
+    };
+    out.push(level(x, 1));
+    scratch.clear();
+    scratch.extend(x.chunks_exact(2).map(|p| 0.5 * (p[0] + p[1])));
+    let mut size = 2;
+    while scratch.len() >= MIN_BLOCKS_SHOWN {
+        out.push(level(scratch, size));
+        let half = scratch.len() / 2;
+        for i in 0..half {
+            scratch[i] = 0.5 * (scratch[2 * i] + scratch[2 * i + 1]);
+        }
+        scratch.truncate(half);
         size *= 2;
     }
     out
@@ -221,6 +343,16 @@ pub fn block_curve(sums: &RunningSums, a: usize, b: usize) -> Vec<BlockLevel> {
 
 /// Statistics of `x[start..]`, using running sums `sums` of all of `x`.
 pub fn statistics_from(x: &[f64], sums: &RunningSums, start: usize) -> SeriesStatistics {
+    statistics_with_scratch(x, sums, start, &mut Vec::new())
+}
+
+/// [`statistics_from`] with a scratch buffer reused across calls (see [`block_curve`]).
+pub fn statistics_with_scratch(
+    x: &[f64],
+    sums: &RunningSums,
+    start: usize,
+    scratch: &mut Vec<f64>,
+) -> SeriesStatistics {
     let n = x.len();
     let start = start.min(n);
     let samples = n - start;
@@ -237,8 +369,8 @@ pub fn statistics_from(x: &[f64], sums: &RunningSums, start: usize) -> SeriesSta
             thirds: None,
         };
     }
-    let (est, g) = estimate(x, sums, start, n, FINAL_BLOCKS);
-    let blocks = block_curve(sums, start, n);
+    let (est, g) = estimate(sums, start, n, FINAL_BLOCKS);
+    let blocks = block_curve(sums, start, n, scratch);
     let block_plateau = blocks
         .iter()
         .filter(|l| l.blocks >= MIN_BLOCKS_PLATEAU)
@@ -246,8 +378,8 @@ pub fn statistics_from(x: &[f64], sums: &RunningSums, start: usize) -> SeriesSta
         .fold(f64::NAN, f64::max);
     let thirds = (samples >= 6).then(|| {
         let third = samples / 3;
-        let (first, _) = estimate(x, sums, start, start + third, THIRD_BLOCKS);
-        let (last, _) = estimate(x, sums, n - third, n, THIRD_BLOCKS);
+        let (first, _) = estimate(sums, start, start + third, THIRD_BLOCKS);
+        let (last, _) = estimate(sums, n - third, n, THIRD_BLOCKS);
         let combined = (first.stderr.powi(2) + last.stderr.powi(2)).sqrt();
         let diff = (first.mean - last.mean).abs();
         let separation = if combined > 0.0 {

@@ -6,6 +6,7 @@ use super::CliError;
 use super::args::{Cmd, RunFlags};
 use super::output;
 use noblescope::analysis::Quantity;
+use noblescope::analysis::sample_store::DEFAULT_CAPACITY;
 use noblescope::engine::headless::{self, HeadlessOptions};
 use noblescope::engine::tuning::{self, TuneError, TuneInput, TuneRequest};
 use noblescope::engine::{Session, bench};
@@ -113,8 +114,12 @@ pub fn run(cmd: Cmd) -> Result<Next, CliError> {
             threads,
             json,
             stages,
+            statistics,
         } => {
             set_threads(threads)?;
+            if let Some(n) = statistics {
+                bench_statistics(n)?;
+            }
             bench(&atoms, steps, warmup, json.as_deref(), stages)?;
         }
         Cmd::Eos {
@@ -317,6 +322,19 @@ fn bench(
     if let Some(path) = json {
         let text = serde_json::to_string_pretty(&results).map_err(|e| CliError::Failed(e.to_string()))?;
         std::fs::write(path, text).map_err(|e| CliError::Failed(format!("{}: {e}", path.display())))?;
+    }
+    Ok(())
+}
+
+/// `bench --statistics N`: one refresh of the evidence of all quantities at N samples.
+fn bench_statistics(samples: usize) -> Result<(), CliError> {
+    if !(1000..=DEFAULT_CAPACITY).contains(&samples) {
+        return Err(CliError::BadInput(format!(
+            "--statistics: {samples} is out of range; allowed: 1000 to {DEFAULT_CAPACITY} (the store's capacity)"
+        )));
+    }
+    for r in noblescope::engine::bench_statistics::measure(samples, 5) {
+        output::bench_statistics_row(&r);
     }
     Ok(())
 }

@@ -3,6 +3,7 @@
 //! window and the engine thread.
 
 pub mod bench;
+pub mod bench_statistics;
 pub mod frame;
 pub mod headless;
 pub mod protocol;
