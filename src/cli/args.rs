@@ -35,6 +35,16 @@ pub struct RunFlags {
     pub until_stderr: Vec<String>,
 }
 
+// What `sweep` can do besides running a sweep file.
+#[derive(Subcommand)]
+pub enum SweepAction {
+    /// Write sweep.csv and sweep.json from a sweep's folder (also run at the end of a local sweep).
+    Collect {
+        /// The sweep's output folder.
+        dir: PathBuf,
+    },
+}
+
 // The subcommands.
 #[derive(Subcommand)]
 pub enum Cmd {
@@ -129,6 +139,49 @@ pub enum Cmd {
         /// samples (default 1000000), on one core.
         #[arg(long, value_name = "SAMPLES", num_args = 0..=1, default_missing_value = "1000000")]
         statistics: Option<usize>,
+    },
+    /// Run a sweep of state points (one folder and one run per point), on this machine or as a
+    /// Slurm job array; `sweep collect DIR` gathers the results into sweep.csv and sweep.json.
+    #[command(args_conflicts_with_subcommands = true)]
+    Sweep {
+        #[command(subcommand)]
+        action: Option<SweepAction>,
+        /// The sweep file (RON).
+        sweep: Option<PathBuf>,
+        /// Output folder (default: runs/<sweep file name>).
+        #[arg(long)]
+        out: Option<PathBuf>,
+        /// Points run at once on this machine (default: one per core); the cores are shared
+        /// out between them.
+        #[arg(long)]
+        jobs: Option<usize>,
+        /// Run the points whose earlier run failed again.
+        #[arg(long)]
+        retry_failed: bool,
+        /// Go ahead with a sweep of more than 100000 points.
+        #[arg(long)]
+        yes: bool,
+        /// No progress bar.
+        #[arg(long)]
+        quiet: bool,
+        /// Prepare the points and write a Slurm job-array script (sweep.sbatch) instead of running.
+        #[arg(long)]
+        slurm: bool,
+        /// Slurm partition.
+        #[arg(long, requires = "slurm")]
+        partition: Option<String>,
+        /// Slurm time limit of each point, HH:MM:SS.
+        #[arg(long, requires = "slurm")]
+        time: Option<String>,
+        /// CPUs (force threads) of each point's task.
+        #[arg(long, requires = "slurm", default_value_t = 1)]
+        cpus_per_task: usize,
+        /// Most array tasks running at once.
+        #[arg(long, requires = "slurm")]
+        max_parallel: Option<usize>,
+        /// Submit the script with sbatch and print the job id.
+        #[arg(long, requires = "slurm")]
+        submit: bool,
     },
     /// Pressure, residual energy, compressibility factor and region of the Lennard-Jones fluid
     /// from the equation of state of Thol et al. (2016).

@@ -13,6 +13,7 @@ use noblescope::engine::{Session, bench};
 use noblescope::io::Setup;
 use noblescope::io::checkpoint::Checkpoint;
 use noblescope::io::precision_setting::{PrecisionSetting, StandardError};
+use noblescope::io::slurm_script::SlurmOptions;
 use noblescope::io::summary::StopReason;
 use noblescope::physics::lj_eos::{self, Eos};
 use noblescope::physics::{Species, UnitSystem};
@@ -122,6 +123,36 @@ pub fn run(cmd: Cmd) -> Result<Next, CliError> {
             }
             bench(&atoms, steps, warmup, json.as_deref(), stages)?;
         }
+        Cmd::Sweep {
+            action,
+            sweep,
+            out,
+            jobs,
+            retry_failed,
+            yes,
+            quiet,
+            slurm,
+            partition,
+            time,
+            cpus_per_task,
+            max_parallel,
+            submit,
+        } => super::sweep::sweep(super::sweep::SweepArgs {
+            action,
+            sweep,
+            out,
+            jobs,
+            retry_failed,
+            yes,
+            quiet,
+            slurm: slurm.then_some(SlurmOptions {
+                partition,
+                time,
+                cpus_per_task,
+                max_parallel,
+            }),
+            submit,
+        })?,
         Cmd::Eos {
             temperature,
             density,

@@ -5,6 +5,7 @@
 pub mod args;
 pub mod commands;
 pub mod output;
+pub mod sweep;
 
 use noblescope::engine::headless::RunError;
 use std::process::ExitCode;

@@ -10,6 +10,7 @@ pub mod protocol;
 pub mod rewind;
 pub mod runner;
 pub mod session;
+pub mod sweep_local;
 pub mod tuning;
 pub mod watchdog;
 

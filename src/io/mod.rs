@@ -10,7 +10,11 @@ pub mod precision_setting;
 pub mod rdf_csv;
 pub mod run_folder;
 pub mod setup;
+pub mod slurm_script;
 pub mod summary;
+pub mod sweep_collect;
+pub mod sweep_file;
+pub mod sweep_folder;
 pub mod trajectory;
 
 pub use setup::{Setup, SetupError};

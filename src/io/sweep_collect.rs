@@ -1,0 +1,205 @@
+//! `sweep collect`: one table of a sweep's results, `sweep.csv` and `sweep.json`, from its
+//! point folders (on any machine that sees the folder).
+
+use super::sweep_folder::{PointRecord, PointState, SweepFolderError, point_dir, point_indices, point_state};
+use serde_json::{Value, json};
+use std::path::Path;
+
+/// Columns of `sweep.csv` after the axes: (header, path into summary.json).
+const COLUMNS: &[(&str, &[&str])] = &[
+    ("stopped_because", &["stopped_because"]),
+    ("steps", &["steps"]),
+    ("equilibrated", &["equilibration", "equilibrated"]),
+    (
+        "equilibration_start_step",
+        &["equilibration", "detected_start_step"],
+    ),
+    ("temperature", &["quantities", "temperature", "mean"]),
+    ("temperature_stderr", &["quantities", "temperature", "stderr"]),
+    ("pressure", &["quantities", "pressure", "mean"]),
+    ("pressure_stderr", &["quantities", "pressure", "stderr"]),
+    (
+        "potential_energy_per_atom",
+        &["quantities", "potential_energy_per_atom", "mean"],
+    ),
+    (
+        "potential_energy_per_atom_stderr",
+        &["quantities", "potential_energy_per_atom", "stderr"],
+    ),
+    (
+        "total_energy_per_atom",
+        &["quantities", "total_energy_per_atom", "mean"],
+    ),
+    (
+        "total_energy_per_atom_stderr",
+        &["quantities", "total_energy_per_atom", "stderr"],
+    ),
+    ("relative_energy_drift", &["relative_energy_drift"]),
+    (
+        "full_potential_pressure",
+        &["equation_of_state", "run_full_potential_pressure", "mean"],
+    ),
+    (
+        "full_potential_pressure_stderr",
+        &["equation_of_state", "run_full_potential_pressure", "stderr"],
+    ),
+    (
+        "full_potential_residual_energy",
+        &["equation_of_state", "run_full_potential_residual_energy", "mean"],
+    ),
+    (
+        "full_potential_residual_energy_stderr",
+        &[
+            "equation_of_state",
+            "run_full_potential_residual_energy",
+            "stderr",
+        ],
+    ),
+    ("eos_pressure", &["equation_of_state", "pressure"]),
+    ("eos_residual_energy", &["equation_of_state", "residual_energy"]),
+    ("eos_region", &["equation_of_state", "region"]),
+    ("self_diffusion_einstein", &["self_diffusion", "einstein", "mean"]),
+    (
+        "self_diffusion_einstein_stderr",
+        &["self_diffusion", "einstein", "stderr"],
+    ),
+    (
+        "self_diffusion_green_kubo",
+        &["self_diffusion", "green_kubo", "mean"],
+    ),
+    (
+        "self_diffusion_green_kubo_stderr",
+        &["self_diffusion", "green_kubo", "stderr"],
+    ),
+    ("alarm", &["alarm", "kind"]),
+    ("alarm_step", &["alarm", "step"]),
+    ("wall_seconds", &["wall_seconds"]),
+    ("atom_steps_per_second", &["atom_steps_per_second"]),
+];
+
+/// Columns that change from one run of the same point to the next (the machine's speed), left
+/// out when two tables are compared.
+pub const TIMING_COLUMNS: [&str; 2] = ["wall_seconds", "atom_steps_per_second"];
+
+fn cell(v: Option<&Value>) -> String {
+    match v {
+        None | Some(Value::Null) => String::new(),
+        Some(Value::String(s)) => csv_text(s),
+        Some(Value::Bool(b)) => b.to_string(),
+        // serde_json keeps the shortest text that reads back as the same double.
+        Some(Value::Number(n)) => n.to_string(),
+        Some(other) => csv_text(&other.to_string()),
+    }
+}
+
+fn csv_text(s: &str) -> String {
+    if s.contains([',', '"', '\n']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_string()
+    }
+}
+
+fn at<'a>(v: &'a Value, path: &[&str]) -> Option<&'a Value> {
+    path.iter().try_fold(v, |v, k| v.get(k))
+}
+
+/// What `collect` found.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct Collected {
+    pub points: usize,
+    pub finished: usize,
+    pub failed: usize,
+    pub pending: usize,
+}
+
+/// Writes `sweep.csv` and `sweep.json` into `out` from its point folders.
+pub fn collect(out: &Path) -> Result<Collected, SweepFolderError> {
+    let io = |p: &Path, e: std::io::Error| SweepFolderError::Io(format!("{}: {e}", p.display()));
+    let indices = point_indices(out)?;
+    if indices.is_empty() {
+        return Err(SweepFolderError::Io(format!(
+            "{}: no point folders (point-0000, …); allowed: a folder written by `noblescope sweep`",
+            out.display()
+        )));
+    }
+    let mut rows = Vec::new();
+    let mut points = Vec::new();
+    let mut tally = Collected::default();
+    let mut axis_names: Vec<String> = Vec::new();
+    for &i in &indices {
+        let dir = point_dir(out, i);
+        let record: PointRecord = std::fs::read_to_string(dir.join("point.json"))
+            .ok()
+            .and_then(|t| serde_json::from_str(&t).ok())
+            .unwrap_or(PointRecord {
+                index: i,
+                replica: 0,
+                axes: Vec::new(),
+            });
+        if axis_names.is_empty() {
+            axis_names = record.axes.iter().map(|(k, _)| k.clone()).collect();
+        }
+        let state = point_state(out, i);
+        match state {
+            PointState::Finished => tally.finished += 1,
+            PointState::Failed => tally.failed += 1,
+            PointState::Pending => tally.pending += 1,
+        }
+        let summary: Value = if state == PointState::Finished {
+            std::fs::read_to_string(dir.join("summary.json"))
+                .ok()
+                .and_then(|t| serde_json::from_str(&t).ok())
+                .unwrap_or(Value::Null)
+        } else {
+            Value::Null
+        };
+        let mut row = vec![i.to_string(), record.replica.to_string()];
+        for name in &axis_names {
+            let v = record
+                .axes
+                .iter()
+                .find(|(k, _)| k == name)
+                .map(|(_, v)| v.as_str())
+                .unwrap_or("");
+            row.push(csv_text(v));
+        }
+        row.push(format!("{state:?}").to_lowercase());
+        for (_, path) in COLUMNS {
+            row.push(cell(at(&summary, path)));
+        }
+        rows.push(row.join(","));
+        points.push(json!({
+            "index": i,
+            "replica": record.replica,
+            "axes": record.axes.iter().map(|(k, v)| (k.clone(), Value::String(v.clone()))).collect::<serde_json::Map<_, _>>(),
+            "state": state,
+            "summary": summary,
+        }));
+    }
+    tally.points = indices.len();
+    let mut header = vec!["index".to_string(), "replica".into()];
+    header.extend(axis_names.iter().cloned());
+    header.push("state".into());
+    header.extend(COLUMNS.iter().map(|(h, _)| h.to_string()));
+    let csv = format!(
+        "# sweep results: one row per point; reduced units of the first listed species (see each point's summary.json)\n{}\n{}\n",
+        header.join(","),
+        rows.join("\n")
+    );
+    let csv_path = out.join("sweep.csv");
+    std::fs::write(&csv_path, csv).map_err(|e| io(&csv_path, e))?;
+    let json_path = out.join("sweep.json");
+    let doc = json!({
+        "points": points,
+        "finished": tally.finished,
+        "failed": tally.failed,
+        "pending": tally.pending,
+    });
+    std::fs::write(
+        &json_path,
+        serde_json::to_string_pretty(&doc).expect("serialises"),
+    )
+    .map_err(|e| io(&json_path, e))?;
+    Ok(tally)
+}
