@@ -122,9 +122,11 @@ pub fn point_folder(index: usize) -> String {
 }
 
 impl Sweep {
-    /// Parses sweep text; `file` names it in errors.
+    /// Parses sweep text; `file` names it in errors. Values of `exclude` are written plainly
+    /// (`(temperature: Kelvin(90.0))`, no `Some(…)`).
     pub fn parse(text: &str, file: &str) -> Result<Sweep, SetupError> {
         ron::Options::default()
+            .with_default_extension(ron::extensions::Extensions::IMPLICIT_SOME)
             .from_str(text)
             .map_err(|e: ron::error::SpannedError| SetupError::Parse {
                 file: file.into(),
