@@ -129,12 +129,13 @@ pub fn sweep(a: SweepArgs) -> Result<(), CliError> {
 fn collect(dir: &Path) -> Result<(), CliError> {
     let c = sweep_collect::collect(dir)?;
     println!(
-        "{} points: {} finished, {} failed, {} not run -> {}",
+        "{} points: {} finished, {} failed, {} not run -> {}{}",
         c.points,
         c.finished,
         c.failed,
         c.pending,
-        dir.join("sweep.csv").display()
+        dir.join("sweep.csv").display(),
+        if c.plot { " and sweep.svg" } else { "" }
     );
     Ok(())
 }

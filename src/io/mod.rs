@@ -15,6 +15,7 @@ pub mod summary;
 pub mod sweep_collect;
 pub mod sweep_file;
 pub mod sweep_folder;
+pub mod sweep_plot;
 pub mod trajectory;
 
 pub use setup::{Setup, SetupError};

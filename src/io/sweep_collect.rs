@@ -2,6 +2,7 @@
 //! point folders (on any machine that sees the folder).
 
 use super::sweep_folder::{PointRecord, PointState, SweepFolderError, point_dir, point_indices, point_state};
+use super::sweep_plot::{SweepPoint, Varying};
 use serde_json::{Value, json};
 use std::path::Path;
 
@@ -111,6 +112,58 @@ pub struct Collected {
     pub finished: usize,
     pub failed: usize,
     pub pending: usize,
+    /// `sweep.svg` was written (a sweep that varies density or temperature alone).
+    pub plot: bool,
+}
+
+/// `sweep.svg` when the sweep varies density alone or temperature alone.
+fn plot(out: &Path, axes: &[String], points: &[Value]) -> bool {
+    let finished: Vec<&Value> = points.iter().filter(|p| p["state"] == "finished").collect();
+    let Some(first) = finished.first() else {
+        return false;
+    };
+    let num = |v: &Value, path: &[&str]| at(v, path).and_then(Value::as_f64);
+    let s = &first["summary"];
+    let single = s.get("equation_of_state").is_some();
+    let varying = match axes {
+        [a] if a == "density" => match num(s, &["equation_of_state", "temperature"]) {
+            Some(t) => Varying::Density { temperature: t },
+            None => return false,
+        },
+        [a] if a == "temperature" => match num(s, &["density"]) {
+            Some(d) => Varying::Temperature { density: d },
+            None => return false,
+        },
+        _ => return false,
+    };
+    let pts: Vec<SweepPoint> = finished
+        .iter()
+        .filter_map(|p| {
+            let s = &p["summary"];
+            let x = match varying {
+                Varying::Density { .. } => num(s, &["density"])?,
+                Varying::Temperature { .. } => num(s, &["equation_of_state", "temperature"])
+                    .or_else(|| num(s, &["quantities", "temperature", "mean"]))?,
+            };
+            Some(SweepPoint {
+                x,
+                pressure: (
+                    num(s, &["quantities", "pressure", "mean"])?,
+                    num(s, &["quantities", "pressure", "stderr"]).unwrap_or(0.0),
+                ),
+                full_pressure: num(s, &["equation_of_state", "run_full_potential_pressure", "mean"]).map(
+                    |m| {
+                        (
+                            m,
+                            num(s, &["equation_of_state", "run_full_potential_pressure", "stderr"])
+                                .unwrap_or(0.0),
+                        )
+                    },
+                ),
+            })
+        })
+        .collect();
+    super::sweep_plot::write(&out.join("sweep.svg"), varying, &pts, single).is_ok()
 }
 
 /// Writes `sweep.csv` and `sweep.json` into `out` from its point folders.
@@ -201,5 +254,6 @@ pub fn collect(out: &Path) -> Result<Collected, SweepFolderError> {
         serde_json::to_string_pretty(&doc).expect("serialises"),
     )
     .map_err(|e| io(&json_path, e))?;
+    tally.plot = plot(out, &axis_names, &points);
     Ok(tally)
 }
