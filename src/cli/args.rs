@@ -93,6 +93,9 @@ pub enum Cmd {
         /// Worker threads for the force loop (default: all cores).
         #[arg(long)]
         threads: Option<usize>,
+        /// Also open a sweep's folder (written by `noblescope sweep`) in the sweep window.
+        #[arg(long)]
+        sweep: Option<PathBuf>,
     },
     /// Scan timesteps and cutoffs from an equilibrated state of a setup.
     Tune {

@@ -68,8 +68,13 @@ pub fn run(cmd: Cmd) -> Result<Next, CliError> {
             view,
             size,
             threads,
+            sweep,
         } => {
             build_force_pool(threads, true)?;
+            if let Some(dir) = &sweep {
+                noblescope::io::sweep_collect::read_table(dir)
+                    .map_err(|e| CliError::BadInput(format!("--sweep: {e}")))?;
+            }
             if frames == Some(0) {
                 return Err(CliError::BadInput(
                     "--frames: 0 is out of range; allowed: 1 to 4294967295".into(),
@@ -93,6 +98,7 @@ pub fn run(cmd: Cmd) -> Result<Next, CliError> {
                     screenshot,
                 }),
                 persist: !scripted,
+                sweep,
             };
             return Ok(Next::Window(Box::new((opts, size))));
         }

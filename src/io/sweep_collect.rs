@@ -116,25 +116,32 @@ pub struct Collected {
     pub plot: bool,
 }
 
-/// `sweep.svg` when the sweep varies density alone or temperature alone.
-fn plot(out: &Path, axes: &[String], points: &[Value]) -> bool {
+/// What a sweep's plot shows: pressure against the one axis that varies.
+#[derive(Clone, Debug, PartialEq)]
+pub struct PlotData {
+    pub varying: Varying,
+    pub points: Vec<SweepPoint>,
+    /// The equation of state along the axis (empty for mixtures), in pieces that leave out the
+    /// two-phase region.
+    pub eos_curve: Vec<Vec<(f64, f64)>>,
+    pub single_species: bool,
+}
+
+/// The plot of a sweep that varies density alone or temperature alone.
+fn plot_data(axes: &[String], points: &[Value]) -> Option<PlotData> {
     let finished: Vec<&Value> = points.iter().filter(|p| p["state"] == "finished").collect();
-    let Some(first) = finished.first() else {
-        return false;
-    };
+    let first = finished.first()?;
     let num = |v: &Value, path: &[&str]| at(v, path).and_then(Value::as_f64);
     let s = &first["summary"];
     let single = s.get("equation_of_state").is_some();
     let varying = match axes {
-        [a] if a == "density" => match num(s, &["equation_of_state", "temperature"]) {
-            Some(t) => Varying::Density { temperature: t },
-            None => return false,
+        [a] if a == "density" => Varying::Density {
+            temperature: num(s, &["equation_of_state", "temperature"])?,
         },
-        [a] if a == "temperature" => match num(s, &["density"]) {
-            Some(d) => Varying::Temperature { density: d },
-            None => return false,
+        [a] if a == "temperature" => Varying::Temperature {
+            density: num(s, &["density"])?,
         },
-        _ => return false,
+        _ => return None,
     };
     let pts: Vec<SweepPoint> = finished
         .iter()
@@ -163,12 +170,36 @@ fn plot(out: &Path, axes: &[String], points: &[Value]) -> bool {
             })
         })
         .collect();
-    super::sweep_plot::write(&out.join("sweep.svg"), varying, &pts, single).is_ok()
+    if pts.is_empty() {
+        return None;
+    }
+    let (lo, hi) = super::sweep_plot::x_range(&pts);
+    Some(PlotData {
+        varying,
+        eos_curve: if single {
+            super::sweep_plot::eos_curve(varying, lo, hi)
+        } else {
+            Vec::new()
+        },
+        points: pts,
+        single_species: single,
+    })
 }
 
-/// Writes `sweep.csv` and `sweep.json` into `out` from its point folders.
-pub fn collect(out: &Path) -> Result<Collected, SweepFolderError> {
-    let io = |p: &Path, e: std::io::Error| SweepFolderError::Io(format!("{}: {e}", p.display()));
+/// A sweep's results as read from its folder.
+#[derive(Clone, Debug, PartialEq)]
+pub struct SweepTable {
+    /// Column names and one row of cells per point, as in `sweep.csv`.
+    pub header: Vec<String>,
+    pub rows: Vec<Vec<String>>,
+    /// `sweep.json`'s points.
+    pub points: Vec<Value>,
+    pub tally: Collected,
+    pub plot: Option<PlotData>,
+}
+
+/// Reads a sweep's results from its point folders, writing nothing.
+pub fn read_table(out: &Path) -> Result<SweepTable, SweepFolderError> {
     let indices = point_indices(out)?;
     if indices.is_empty() {
         return Err(SweepFolderError::Io(format!(
@@ -221,7 +252,7 @@ pub fn collect(out: &Path) -> Result<Collected, SweepFolderError> {
         for (_, path) in COLUMNS {
             row.push(cell(at(&summary, path)));
         }
-        rows.push(row.join(","));
+        rows.push(row);
         points.push(json!({
             "index": i,
             "replica": record.replica,
@@ -235,11 +266,28 @@ pub fn collect(out: &Path) -> Result<Collected, SweepFolderError> {
     header.extend(axis_names.iter().cloned());
     header.push("state".into());
     header.extend(COLUMNS.iter().map(|(h, _)| h.to_string()));
+    let plot = plot_data(&axis_names, &points);
+    Ok(SweepTable {
+        header,
+        rows,
+        points,
+        tally,
+        plot,
+    })
+}
+
+/// Writes `sweep.csv` and `sweep.json` (and `sweep.svg` when one axis, density or
+/// temperature, varies) into `out` from its point folders.
+pub fn collect(out: &Path) -> Result<Collected, SweepFolderError> {
+    let io = |p: &Path, e: std::io::Error| SweepFolderError::Io(format!("{}: {e}", p.display()));
+    let t = read_table(out)?;
+    let lines: Vec<String> = t.rows.iter().map(|r| r.join(",")).collect();
     let csv = format!(
         "# sweep results: one row per point; reduced units of the first listed species (see each point's summary.json)\n{}\n{}\n",
-        header.join(","),
-        rows.join("\n")
+        t.header.join(","),
+        lines.join("\n")
     );
+    let (points, mut tally) = (t.points, t.tally);
     let csv_path = out.join("sweep.csv");
     std::fs::write(&csv_path, csv).map_err(|e| io(&csv_path, e))?;
     let json_path = out.join("sweep.json");
@@ -254,6 +302,8 @@ pub fn collect(out: &Path) -> Result<Collected, SweepFolderError> {
         serde_json::to_string_pretty(&doc).expect("serialises"),
     )
     .map_err(|e| io(&json_path, e))?;
-    tally.plot = plot(out, &axis_names, &points);
+    tally.plot = t
+        .plot
+        .is_some_and(|p| super::sweep_plot::write(&out.join("sweep.svg"), &p).is_ok());
     Ok(tally)
 }

@@ -1,6 +1,7 @@
 //! `sweep.svg`: a sweep's pressure against the one axis it varies (density along an isotherm,
 //! or temperature along an isochore), with the published equation of state as a curve.
 
+use super::sweep_collect::PlotData;
 use crate::physics::lj_eos::{Eos, Region};
 use plotters::prelude::*;
 use std::path::Path;
@@ -24,9 +25,21 @@ pub enum Varying {
     Temperature { density: f64 },
 }
 
+/// The x range of a plot of `points`, padded by 5 %.
+pub fn x_range(points: &[SweepPoint]) -> (f64, f64) {
+    let (lo, hi) = points
+        .iter()
+        .map(|p| p.x)
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), x| {
+            (a.min(x), b.max(x))
+        });
+    let pad = ((hi - lo) * 0.05).max(1e-3);
+    ((lo - pad).max(0.0), hi + pad)
+}
+
 /// The equation of state along the axis, in pieces that leave out the two-phase region and
 /// states outside the validated range.
-fn eos_curve(v: Varying, lo: f64, hi: f64) -> Vec<Vec<(f64, f64)>> {
+pub fn eos_curve(v: Varying, lo: f64, hi: f64) -> Vec<Vec<(f64, f64)>> {
     let mut pieces: Vec<Vec<(f64, f64)>> = vec![Vec::new()];
     for k in 0..=400 {
         let x = lo + (hi - lo) * k as f64 / 400.0;
@@ -51,23 +64,13 @@ fn eos_curve(v: Varying, lo: f64, hi: f64) -> Vec<Vec<(f64, f64)>> {
     pieces
 }
 
-/// Writes the plot to `path`; `single_species` decides whether the equation of state is drawn.
-pub fn write(path: &Path, v: Varying, points: &[SweepPoint], single_species: bool) -> Result<(), String> {
+/// Writes the plot to `path`.
+pub fn write(path: &Path, data: &PlotData) -> Result<(), String> {
+    let (v, points, curve) = (data.varying, &data.points, &data.eos_curve);
     if points.is_empty() {
         return Err("no finished points to plot".into());
     }
-    let xs = points.iter().map(|p| p.x);
-    let (mut lo, mut hi) = xs.fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), x| {
-        (a.min(x), b.max(x))
-    });
-    let pad = ((hi - lo) * 0.05).max(1e-3);
-    lo = (lo - pad).max(0.0);
-    hi += pad;
-    let curve = if single_species {
-        eos_curve(v, lo, hi)
-    } else {
-        Vec::new()
-    };
+    let (lo, hi) = x_range(points);
     let mut ys: Vec<f64> = Vec::new();
     for p in points {
         ys.push(p.pressure.0 - p.pressure.1);

@@ -14,6 +14,7 @@ use super::persist::{self, Remembered};
 use super::setup_form::SetupForm;
 use super::start::{StartOptions, bundled_setup};
 use super::status::Message;
+use super::sweep_view::SweepView;
 use super::tuning_panel::TuningPanel;
 use super::watch::{StartView, Watching};
 use crate::engine::{Command, EngineHandle, Frame};
@@ -50,6 +51,8 @@ pub struct NoblescopeApp {
     /// The native file dialog, if one is open (it does not block the window).
     pub(super) dialog: files::Dialog<Ask>,
     pub(super) frames_drawn: u64,
+    /// An open sweep's results (File → Open sweep folder…).
+    pub(super) sweep: Option<SweepView>,
 }
 
 impl NoblescopeApp {
@@ -78,6 +81,7 @@ impl NoblescopeApp {
             tuning_open: opts.view == Some(StartView::Tuning),
             tune_at_start: opts.view == Some(StartView::Tuning),
             help_open: false,
+            sweep: opts.sweep.as_deref().and_then(|d| SweepView::load(d).ok()),
             leave: LeaveQuestion::default(),
             allow_close: false,
             persist: opts.persist,
@@ -253,6 +257,15 @@ impl NoblescopeApp {
             self.request_leave(&ctx, Leave::OpenPath(p));
         }
         self.panels(ui);
+        if let Some(v) = self.sweep.as_mut() {
+            v.show(&ctx);
+            if let Some(p) = v.open_point.take() {
+                self.request_leave(&ctx, Leave::OpenPath(p));
+            }
+        }
+        if self.sweep.as_ref().is_some_and(|v| !v.open) {
+            self.sweep = None;
+        }
     }
 }
 

@@ -9,6 +9,7 @@ use super::leave::{self, Leave, LeaveStep};
 use super::pending::Ask;
 use super::setup_form::SetupForm;
 use super::start::{BUNDLED_NAME, bundled_setup};
+use super::sweep_view::SweepView;
 use crate::engine::Command;
 use crate::io::setup::Setup;
 use std::path::{Path, PathBuf};
@@ -117,6 +118,7 @@ impl NoblescopeApp {
             Ask::LoadCheckpoint => self.send(Command::LoadCheckpoint(path)),
             Ask::ExportCsv => self.export_csv(&path),
             Ask::SavePicture => self.request_screenshot(ctx, path),
+            Ask::OpenSweep => self.open_sweep(&path),
         }
     }
 
@@ -160,6 +162,21 @@ impl NoblescopeApp {
                 self.run.status.error(format!("Could not save the setup: {e}"));
                 self.leave.ask_again(then);
             }
+        }
+    }
+
+    /// Opens a sweep's folder in the sweep window.
+    pub(super) fn open_sweep(&mut self, dir: &Path) {
+        match SweepView::load(dir) {
+            Ok(v) => {
+                self.run.status.info(format!(
+                    "Opened the sweep in {} ({} points)",
+                    dir.display(),
+                    v.table.tally.points
+                ));
+                self.sweep = Some(v);
+            }
+            Err(e) => self.run.status.error(format!("Could not open the sweep: {e}")),
         }
     }
 

@@ -68,6 +68,13 @@ impl<T> Dialog<T> {
     }
 }
 
+/// Asks for a sweep's output folder to open.
+pub fn pick_sweep_folder() -> Option<PathBuf> {
+    rfd::FileDialog::new()
+        .set_title("Open a sweep's folder")
+        .pick_folder()
+}
+
 /// Asks for a setup file to open.
 pub fn pick_setup_to_open() -> Option<PathBuf> {
     rfd::FileDialog::new()

@@ -85,6 +85,14 @@ impl NoblescopeApp {
             ui.close();
             self.save_setup(ctx, true, None);
         }
+        if ui
+            .button("Open sweep folder…")
+            .on_hover_text("A folder written by `noblescope sweep`: its points as a table and a plot")
+            .clicked()
+        {
+            ui.close();
+            self.ask_file(ctx, Ask::OpenSweep, files::pick_sweep_folder);
+        }
         ui.separator();
         if ui.button("Save checkpoint…").clicked() {
             ui.close();

@@ -41,6 +41,7 @@ pub mod shortcuts;
 pub mod slab_view;
 pub mod start;
 pub mod status;
+pub mod sweep_view;
 pub mod tuning_panel;
 pub mod unit_field;
 pub mod watch;

@@ -25,6 +25,8 @@ pub enum Ask {
     ExportCsv,
     /// Save a PNG picture of the window.
     SavePicture,
+    /// Open a sweep's output folder.
+    OpenSweep,
 }
 
 /// Pictures of the window: asked of the integration, written to a file when they arrive.

@@ -25,4 +25,6 @@ pub struct StartOptions {
     pub watch: Option<WatchPlan>,
     /// Read and write the remembered state (off for scripted runs and tests).
     pub persist: bool,
+    /// A sweep's folder to open in the sweep window at start (`watch --sweep`).
+    pub sweep: Option<PathBuf>,
 }

@@ -24,6 +24,7 @@ pub fn harness(setup: Setup) -> Harness<'static, NoblescopeApp> {
             view: Some(noblescope::ui::watch::StartView::Setup),
             watch: None,
             persist: false,
+            sweep: None,
         },
     );
     Harness::builder()
