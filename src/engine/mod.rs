@@ -2,6 +2,7 @@
 //! serves both the window and the command line. [`protocol`] is the contract between the
 //! window and the engine thread.
 
+pub mod analyses;
 pub mod bench;
 pub mod frame;
 pub mod headless;

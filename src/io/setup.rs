@@ -149,6 +149,15 @@ pub struct Setup {
     /// steps, from `equilibration_steps` on; g(r) reaches out to the cutoff.
     #[serde(default)]
     pub rdf_every: Option<u64>,
+    /// Add positions and velocities to the mean squared displacement and velocity
+    /// autocorrelation (msd.csv, vacf.csv, both self-diffusion estimates) every this many
+    /// steps, from `equilibration_steps` on.
+    #[serde(default)]
+    pub dynamics_every: Option<u64>,
+    /// Add the atoms' speeds to the speed histograms (speeds.csv) every this many steps, from
+    /// `equilibration_steps` on.
+    #[serde(default)]
+    pub speeds_every: Option<u64>,
 }
 
 fn default_skin() -> Length {
@@ -538,6 +547,20 @@ impl Setup {
         ] {
             if every == Some(0) {
                 return Err(SetupError::field(name, "Some(0)", "None or Some(n) with n ≥ 1"));
+            }
+        }
+        for (name, every) in [
+            ("dynamics_every", self.dynamics_every),
+            ("speeds_every", self.speeds_every),
+        ] {
+            if let Some(n) = every
+                && (n == 0 || n > self.steps)
+            {
+                return Err(SetupError::field(
+                    name,
+                    format!("Some({n})"),
+                    format!("None or Some(n) with 1 ≤ n ≤ steps ({})", self.steps),
+                ));
             }
         }
         let shares: Vec<f64> = self.species.iter().map(|s| s.share).collect();

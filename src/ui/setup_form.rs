@@ -66,6 +66,10 @@ pub struct SetupForm {
     pub trajectory_every: Option<u64>,
     /// Kept from the loaded setup (not edited in the form).
     pub rdf_every: Option<u64>,
+    /// Kept from the loaded setup (not edited in the form).
+    pub dynamics_every: Option<u64>,
+    /// Kept from the loaded setup (not edited in the form).
+    pub speeds_every: Option<u64>,
     /// The setup Apply last refused because it does not fit in memory, and why; shown at the
     /// atoms field while the form still describes that setup.
     pub memory_refusal: Option<(Setup, SetupError)>,
@@ -155,6 +159,8 @@ impl SetupForm {
             sample_every: s.sample_every.to_string(),
             trajectory_every: s.trajectory_every,
             rdf_every: s.rdf_every,
+            dynamics_every: s.dynamics_every,
+            speeds_every: s.speeds_every,
             memory_refusal: None,
         }
     }
@@ -261,6 +267,8 @@ impl SetupForm {
             sample_every,
             trajectory_every: self.trajectory_every,
             rdf_every: self.rdf_every,
+            dynamics_every: self.dynamics_every,
+            speeds_every: self.speeds_every,
         };
         (setup, errors)
     }
