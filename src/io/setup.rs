@@ -186,6 +186,14 @@ pub const CUTOFF_RANGE_SIGMA: (f64, f64) = (1.0, 10.0);
 pub const SKIN_RANGE_SIGMA: (f64, f64) = (0.0, 2.0);
 /// Largest number of species in one mixture.
 pub const MAX_SPECIES: usize = 6;
+/// Well depth ε/k_B a custom species may have, K: (smallest, largest). Helium's 10.22 K and
+/// xenon's 221 K lie well inside; the bounds keep reduced temperatures and timesteps of a
+/// mixture within what the other ranges can express.
+pub const CUSTOM_EPSILON_RANGE_KELVIN: (f64, f64) = (1.0, 2000.0);
+/// Size σ a custom species may have, Å: (smallest, largest).
+pub const CUSTOM_SIGMA_RANGE_ANGSTROM: (f64, f64) = (1.0, 10.0);
+/// Mass a custom species may have, Da: (lightest, heaviest).
+pub const CUSTOM_MASS_RANGE_DALTON: (f64, f64) = (1.0, 1000.0);
 /// Bytes per atom the engine needs besides the neighbour list's pairs: positions, velocities,
 /// forces and types (73), the list's per-atom arrays (at most 48 at any density, see
 /// `physics::neighbours`), a checkpoint being written (a copy of the state and its encoding,
@@ -634,6 +642,76 @@ impl Setup {
                     format!("{:?} (listed twice)", s.kind),
                     "each species at most once",
                 ));
+            }
+            if let Species::Custom {
+                name,
+                epsilon,
+                sigma,
+                mass,
+            } = s.kind
+            {
+                let field = |f: &str| format!("species[{i}].kind.{f}");
+                let bytes = name.given_len();
+                if !name.fits()
+                    || name.as_str().trim().is_empty()
+                    || name.as_str().chars().any(char::is_control)
+                {
+                    return Err(SetupError::field(
+                        &field("name"),
+                        format!("{name:?} ({bytes} bytes)"),
+                        format!(
+                            "1 to {} bytes of text without control characters",
+                            crate::physics::species::SpeciesName::CAPACITY
+                        ),
+                    ));
+                }
+                let (lo, hi) = CUSTOM_EPSILON_RANGE_KELVIN;
+                let kj = |k: f64| format_limit(k * crate::physics::units::GAS_CONSTANT * 1e-3);
+                in_range(
+                    &field("epsilon"),
+                    format!("{epsilon:?} = {} K", format_limit(epsilon.kelvin())),
+                    epsilon.kelvin(),
+                    lo,
+                    hi,
+                    &format!(
+                        "ε/k_B from {} K to {} K ({} to {} kJ/mol)",
+                        limit(lo),
+                        limit(hi),
+                        kj(lo),
+                        kj(hi)
+                    ),
+                )?;
+                let (lo, hi) = CUSTOM_SIGMA_RANGE_ANGSTROM;
+                in_range(
+                    &field("sigma"),
+                    format!("{sigma:?} = {} Å", format_limit(sigma.angstrom())),
+                    sigma.angstrom(),
+                    lo,
+                    hi,
+                    &format!(
+                        "{} Å to {} Å ({} nm to {} nm)",
+                        limit(lo),
+                        limit(hi),
+                        limit(lo / 10.0),
+                        limit(hi / 10.0)
+                    ),
+                )?;
+                let (lo, hi) = CUSTOM_MASS_RANGE_DALTON;
+                in_range(
+                    &field("mass"),
+                    format!("{mass:?}"),
+                    mass.grams_per_mole(),
+                    lo,
+                    hi,
+                    &format!("{} Da to {} Da", limit(lo), limit(hi)),
+                )?;
+                if self.species[..i].iter().any(|o| o.kind.label() == name.as_str()) {
+                    return Err(SetupError::field(
+                        &field("name"),
+                        format!("{name:?} (named twice)"),
+                        "a name no other species of the setup has",
+                    ));
+                }
             }
             if n > 1 && s.kind == Species::ReducedLJ {
                 return Err(SetupError::field(
