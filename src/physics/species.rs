@@ -252,7 +252,7 @@ mod tests {
     fn custom_units_convert_to_kelvin_angstrom_and_grams_per_mole() {
         // 1 kJ/mol = 1000 / R K with R = k_B N_A = 8.314462618 J/(mol K) (SI 2019, exact).
         assert!((WellDepth::KiloJoulesPerMole(1.0).kelvin() - 120.272_36).abs() < 1e-4);
-        assert_eq!(Size::Nanometre(0.34).angstrom(), 3.4);
+        assert!((Size::Nanometre(0.34).angstrom() - 3.4).abs() < 1e-15);
         let s = Species::Custom {
             name: "argon, 120 K set".into(),
             epsilon: WellDepth::Kelvin(120.0),
