@@ -117,6 +117,7 @@ impl NoblescopeApp {
             Ask::LoadCheckpoint => self.send(Command::LoadCheckpoint(path)),
             Ask::ExportCsv => self.export_csv(&path),
             Ask::SavePicture => self.request_screenshot(ctx, path),
+            Ask::ExportAnalysis(file) => self.send(Command::SaveAnalysis { file, path }),
         }
     }
 

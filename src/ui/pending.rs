@@ -25,6 +25,8 @@ pub enum Ask {
     ExportCsv,
     /// Save a PNG picture of the window.
     SavePicture,
+    /// Export one of the structure and motion analyses as CSV.
+    ExportAnalysis(crate::engine::AnalysisFile),
 }
 
 /// Pictures of the window: asked of the integration, written to a file when they arrive.
