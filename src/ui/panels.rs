@@ -110,8 +110,11 @@ impl NoblescopeApp {
             let mut open = true;
             let running = self.run.running.clone();
             let mut asked = None;
+            // Below the top bar and to the right, so Run, Step and the panel toggles stay free.
+            let right = ctx.content_rect().max.x;
             egui::Window::new("Structure and motion")
                 .open(&mut open)
+                .default_pos(egui::pos2((right - 780.0).max(0.0), 48.0))
                 .default_size([760.0, 600.0])
                 .vscroll(true)
                 .show(&ctx, |ui| asked = self.run.structure.show(ui, &running));

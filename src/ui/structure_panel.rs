@@ -168,7 +168,7 @@ impl StructurePanel {
                 "From step {}: g(r) of {} configurations (every {} steps), motion from {} samples (every {}), speeds of {} configurations.",
                 r.from_step, r.rdf_frames, r.rdf_every, r.dynamics_samples, r.dynamics_every, r.speed_frames
             ));
-            if ui.button("Reset").on_hover_text("start the analyses again from the present step").clicked() {
+            if ui.button("Reset analyses").on_hover_text("start the analyses again from the present step").clicked() {
                 action = Some(StructureAction::Reset);
             }
         });
