@@ -7,12 +7,14 @@ use super::session::Session;
 use crate::analysis::FitWindow;
 use crate::io::analysis_files::{analysis_files, species_labels};
 
-/// Steps between configurations of g(r) and of the speeds when the setup names none: a pass
-/// over the neighbour list costs about half a step, so this is well under 1 % of the run.
-pub const LIVE_STRUCTURE_EVERY: u64 = 100;
+/// Steps between configurations of g(r) and of the speeds when the setup names none. A g(r)
+/// pass over the neighbour list of the 32,000-atom liquid took 25 ms (about 1.3 steps on one
+/// thread), so this costs about 0.7 % of the run; the speeds cost nothing measurable.
+pub const LIVE_STRUCTURE_EVERY: u64 = 200;
 /// Time between samples of the self motion when the setup names none, τ: fine enough to
 /// resolve the velocity autocorrelation of a dense liquid (its first zero near 0.15 τ for
-/// argon-like parameters, see `tests/rahman_argon.rs`).
+/// argon-like parameters, see `tests/rahman_argon.rs`). Every 4 steps of the 32,000-atom
+/// liquid this took 1.45 % of the stepping time on one thread (4,096 atoms followed).
 pub const LIVE_DYNAMICS_INTERVAL_TAU: f64 = 0.02;
 
 /// The analyses of the running simulation and the fit window the window asked for.
