@@ -30,6 +30,7 @@ fn small(steps: u64, sample_every: u64) -> Setup {
         rdf_every: None,
         dynamics_every: None,
         speeds_every: None,
+        temperature_ramp: None,
     }
 }
 

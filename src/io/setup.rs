@@ -105,6 +105,15 @@ pub enum ThermostatChoice {
     Langevin { friction: Rate },
 }
 
+/// A bath target that changes linearly with the step: from the setup's `temperature` at step 0
+/// to `to` at step `steps`, and `to` after that.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct TemperatureRamp {
+    pub to: Temperature,
+    pub steps: u64,
+}
+
 /// Ensemble of the run.
 #[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
 pub enum Ensemble {
@@ -158,6 +167,10 @@ pub struct Setup {
     /// `equilibration_steps` on.
     #[serde(default)]
     pub speeds_every: Option<u64>,
+    /// Under a thermostat: move the bath target linearly from `temperature` to `to` over the
+    /// first `steps` steps (heating a crystal through melting, cooling a liquid).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub temperature_ramp: Option<TemperatureRamp>,
 }
 
 fn default_skin() -> Length {
@@ -571,6 +584,9 @@ impl Setup {
                 ));
             }
         }
+        if let Some(r) = self.temperature_ramp {
+            self.ramp_end(r)?;
+        }
         let shares: Vec<f64> = self.species.iter().map(|s| s.share).collect();
         let spec = SimulationSpec {
             kinds: self.species.iter().map(|s| s.kind).collect(),
@@ -598,6 +614,50 @@ impl Setup {
         }
         spec.check()?;
         Ok(spec)
+    }
+
+    /// The reduced end temperature of a ramp, validated: a thermostat must run, the end
+    /// temperature lies in the range the start temperature may have, and the ramp lasts
+    /// 1 to `steps` steps.
+    fn ramp_end(&self, r: TemperatureRamp) -> Result<f64, SetupError> {
+        if self.ensemble == Ensemble::Nve {
+            return Err(SetupError::field(
+                "temperature_ramp",
+                format!("{r:?} with ensemble Nve"),
+                "None under Nve; a ramp moves the target of a thermostat (Nvt)",
+            ));
+        }
+        let to = self.reduced_temperature("temperature_ramp.to", r.to)?;
+        in_range(
+            "temperature_ramp.to",
+            format!("{:?} = {} reduced", r.to, format_limit(to)),
+            to,
+            TEMPERATURE_RANGE_REDUCED.0,
+            TEMPERATURE_RANGE_REDUCED.1,
+            &format!(
+                "reduced temperature kT/ε from {} to {}",
+                limit(TEMPERATURE_RANGE_REDUCED.0),
+                limit(TEMPERATURE_RANGE_REDUCED.1)
+            ),
+        )?;
+        if r.steps == 0 || r.steps > self.steps {
+            return Err(SetupError::field(
+                "temperature_ramp.steps",
+                r.steps,
+                format!("1 to steps ({})", self.steps),
+            ));
+        }
+        Ok(to)
+    }
+
+    /// The bath target (reduced) at `step` under the setup's ramp, or None without a valid
+    /// ramp: linear from `temperature` at step 0 to the ramp's end at its last step.
+    pub fn ramp_target(&self, step: u64) -> Option<f64> {
+        let r = self.temperature_ramp?;
+        let to = self.ramp_end(r).ok()?;
+        let from = self.reduced_temperature("temperature", self.temperature).ok()?;
+        let f = (step as f64 / r.steps as f64).min(1.0);
+        Some(from + (to - from) * f)
     }
 
     /// [`Setup::resolve`], then [`Setup::check_memory_available`]: for every place that starts

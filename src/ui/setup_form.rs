@@ -172,6 +172,8 @@ pub struct SetupForm {
     pub dynamics_every: Option<u64>,
     /// Kept from the loaded setup (not edited in the form).
     pub speeds_every: Option<u64>,
+    /// Kept from the loaded setup (not edited in the form).
+    pub temperature_ramp: Option<crate::io::setup::TemperatureRamp>,
     /// The setup Apply last refused because it does not fit in memory, and why; shown at the
     /// atoms field while the form still describes that setup.
     pub memory_refusal: Option<(Setup, SetupError)>,
@@ -264,6 +266,7 @@ impl SetupForm {
             rdf_every: s.rdf_every,
             dynamics_every: s.dynamics_every,
             speeds_every: s.speeds_every,
+            temperature_ramp: s.temperature_ramp,
             memory_refusal: None,
         }
     }
@@ -373,6 +376,7 @@ impl SetupForm {
             rdf_every: self.rdf_every,
             dynamics_every: self.dynamics_every,
             speeds_every: self.speeds_every,
+            temperature_ramp: self.temperature_ramp,
         };
         (setup, errors)
     }
