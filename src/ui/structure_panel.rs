@@ -91,6 +91,26 @@ fn thermostat_note(s: &Setup) -> Option<&'static str> {
     }
 }
 
+/// "mean ± error" with the error to two significant digits and the mean to the same place:
+/// fixed point for magnitudes from 1e-3 to 1e5, scientific otherwise; without a finite error
+/// the mean alone in short form.
+pub fn with_error(mean: f64, err: f64) -> String {
+    if !(err.is_finite() && err > 0.0 && mean.is_finite()) {
+        return format!("{} (no error yet)", format_number(mean));
+    }
+    let e = err.log10().floor() as i32;
+    let big = mean.abs().max(err);
+    if (1e-3..1e5).contains(&big) {
+        let d = (1 - e).max(0) as usize;
+        format!("{mean:.d$} ± {err:.d$}")
+    } else {
+        let m = big.log10().floor() as i32;
+        let d = (m - e + 1).max(1) as usize;
+        let scale = 10f64.powi(m);
+        format!("({:.d$} ± {:.d$})e{m}", mean / scale, err / scale)
+    }
+}
+
 fn line(c: &Curve, sx: f64, sy: f64, colour: egui::Color32) -> Line<'static> {
     let pts: Vec<[f64; 2]> = c.points.iter().map(|p| [p[0] * sx, p[1] * sy]).collect();
     Line::new(c.label.clone(), PlotPoints::from(pts)).color(colour)
@@ -175,13 +195,8 @@ impl StructurePanel {
         // The two estimates of D side by side.
         ui.horizontal_wrapped(|ui| match &r.diffusion {
             Some(d) => {
-                let f = |e: crate::analysis::Estimate| {
-                    format!(
-                        "{} ± {}",
-                        format_number(e.mean * sc.diffusion),
-                        format_number(e.stderr * sc.diffusion)
-                    )
-                };
+                let f =
+                    |e: crate::analysis::Estimate| with_error(e.mean * sc.diffusion, e.stderr * sc.diffusion);
                 ui.strong(format!("D (Einstein) = {} {}", f(d.einstein), sc.diffusion_unit));
                 ui.separator();
                 ui.strong(format!(
@@ -357,7 +372,7 @@ impl StructurePanel {
                         );
                         p.line(
                             Line::new(format!("{} Maxwell–Boltzmann", s.label), PlotPoints::from(mb))
-                                .color(colour(k))
+                                .color(colour(k + 1))
                                 .style(egui_plot::LineStyle::dashed_dense()),
                         );
                     }
@@ -390,6 +405,14 @@ impl StructurePanel {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn estimates_show_the_error_to_two_digits_and_the_mean_to_the_same_place() {
+        assert_eq!(with_error(0.0229439, 0.00227723), "0.0229 ± 0.0023");
+        assert_eq!(with_error(2.372e-5, 2.8e-7), "(2.372 ± 0.028)e-5");
+        assert_eq!(with_error(12.34, 1.5), "12.3 ± 1.5");
+        assert!(with_error(1.0, f64::NAN).contains("no error yet"));
+    }
 
     #[test]
     fn the_typed_fit_window_is_converted_to_tau_or_refused_with_its_range() {
