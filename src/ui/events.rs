@@ -96,6 +96,10 @@ pub fn reduce(view: &mut RunView, event: Event) -> Echo {
             } else {
                 Echo::Nothing
             };
+            // Under a bath ramp the target line follows the ramp's value at this step.
+            if view.running.temperature_ramp.is_some() && thermostat_target(&view.running).is_some() {
+                view.plots.set_target(view.running.ramp_target(s.step));
+            }
             view.status.status = s;
             return echo;
         }
