@@ -88,6 +88,7 @@ fn library_checkpoint_continues_bit_for_bit() {
             setup: setup.clone(),
             spec: b.spec().clone(),
             state: b.state(),
+            samples: None,
         };
         let bytes = saved.to_bytes();
         drop(b);
@@ -259,6 +260,7 @@ fn small_checkpoint(steps_to_run: u64) -> Checkpoint {
         setup,
         spec: sim.spec().clone(),
         state: sim.state(),
+        samples: None,
     }
 }
 
@@ -345,8 +347,8 @@ fn fnv1a(bytes: &[u8]) -> u64 {
 #[test]
 fn checksum_valid_checkpoint_with_absurd_header_length_is_an_error_not_a_panic() {
     let good = small_checkpoint(1).to_bytes();
-    let magic_len = b"NOBLESCOPE-STATE 2\n".len();
-    assert_eq!(&good[..magic_len], b"NOBLESCOPE-STATE 2\n");
+    let magic_len = b"NOBLESCOPE-STATE 3\n".len();
+    assert_eq!(&good[..magic_len], b"NOBLESCOPE-STATE 3\n");
     for hlen in [u64::MAX - 5, u64::MAX, (good.len() as u64) * 2, 0] {
         let mut b = good[..good.len() - 8].to_vec();
         b[magic_len..magic_len + 8].copy_from_slice(&hlen.to_le_bytes());

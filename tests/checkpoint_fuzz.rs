@@ -37,7 +37,7 @@ const SETUP: &str = "Setup(
     ensemble: Nvt(thermostat: Langevin(friction: Reduced(1.0))),
     steps: 1000,
 )";
-const MAGIC_LEN: usize = "NOBLESCOPE-STATE 2\n".len();
+const MAGIC_LEN: usize = "NOBLESCOPE-STATE 3\n".len();
 
 /// A checkpoint of a short run, as bytes.
 fn original() -> &'static [u8] {

@@ -51,6 +51,7 @@ fn checkpoint(ensemble: &str) -> Checkpoint {
         setup,
         spec: sim.spec().clone(),
         state: sim.state(),
+        samples: None,
     }
 }
 

@@ -31,6 +31,7 @@ fn small(steps: u64, sample_every: u64) -> Setup {
         dynamics_every: None,
         speeds_every: None,
         temperature_ramp: None,
+        precision_targets: Vec::new(),
     }
 }
 

@@ -28,6 +28,11 @@ pub struct RunFlags {
     /// Replace the files of an earlier run in the output folder.
     #[arg(long)]
     pub overwrite: bool,
+    /// Stop once this quantity's standard error (reduced units) is reached after the detected
+    /// equilibration start, e.g. pressure=0.005; repeat or separate with commas for more.
+    /// Quantities: temperature, pressure, potential_energy, total_energy, conserved_energy.
+    #[arg(long = "until-stderr", value_name = "QUANTITY=STDERR", value_delimiter = ',')]
+    pub until_stderr: Vec<String>,
 }
 
 // The subcommands.
@@ -120,6 +125,10 @@ pub enum Cmd {
         /// Also time each stage (kick, drift, skin check, list build, forces) over normal steps.
         #[arg(long)]
         stages: bool,
+        /// Also time one refresh of the equilibration statistics of every quantity at this many
+        /// samples (default 1000000), on one core.
+        #[arg(long, value_name = "SAMPLES", num_args = 0..=1, default_missing_value = "1000000")]
+        statistics: Option<usize>,
     },
     /// Pressure, residual energy, compressibility factor and region of the Lennard-Jones fluid
     /// from the equation of state of Thol et al. (2016).

@@ -5,16 +5,22 @@
 use super::CliError;
 use super::args::{Cmd, RunFlags};
 use super::output;
+use noblescope::analysis::Quantity;
+use noblescope::analysis::sample_store::DEFAULT_CAPACITY;
 use noblescope::engine::headless::{self, HeadlessOptions};
 use noblescope::engine::tuning::{self, TuneError, TuneInput, TuneRequest};
 use noblescope::engine::{Session, bench};
 use noblescope::io::Setup;
 use noblescope::io::checkpoint::Checkpoint;
+use noblescope::io::precision_setting::{PrecisionSetting, StandardError};
+use noblescope::io::summary::StopReason;
 use noblescope::physics::lj_eos::{self, Eos};
 use noblescope::physics::{Species, UnitSystem};
 use noblescope::ui::StartOptions;
 use noblescope::ui::watch::WatchPlan;
 use std::path::{Path, PathBuf};
+use std::sync::Arc;
+use std::sync::atomic::{AtomicBool, Ordering};
 
 /// What the window opens on after `watch`'s checks: start options and window size.
 pub type WindowPlan = (StartOptions, Option<[f32; 2]>);
@@ -32,7 +38,8 @@ pub fn run(cmd: Cmd) -> Result<Next, CliError> {
     match cmd {
         Cmd::Run { setup, out, run } => {
             let threads = set_threads(run.threads)?;
-            let parsed = Setup::load(&setup).map_err(|e| CliError::BadInput(e.to_string()))?;
+            let mut parsed = Setup::load(&setup).map_err(|e| CliError::BadInput(e.to_string()))?;
+            add_precision_flags(&mut parsed, &run.until_stderr)?;
             let out = out.unwrap_or_else(|| default_out(&setup));
             headless::check_output_dir(&out, run.overwrite)?;
             for note in parsed.cautions() {
@@ -45,7 +52,8 @@ pub fn run(cmd: Cmd) -> Result<Next, CliError> {
         Cmd::Resume { checkpoint, out, run } => {
             let threads = set_threads(run.threads)?;
             headless::check_output_dir(&out, run.overwrite)?;
-            let c = Checkpoint::load(&checkpoint).map_err(|e| CliError::BadInput(e.to_string()))?;
+            let mut c = Checkpoint::load(&checkpoint).map_err(|e| CliError::BadInput(e.to_string()))?;
+            add_precision_flags(&mut c.setup, &run.until_stderr)?;
             let session = Session::from_checkpoint(c)
                 .map_err(|e| CliError::BadInput(format!("{}: {e}", checkpoint.display())))?;
             run_to_end(session, false, out, threads, &run)?;
@@ -106,8 +114,12 @@ pub fn run(cmd: Cmd) -> Result<Next, CliError> {
             threads,
             json,
             stages,
+            statistics,
         } => {
             set_threads(threads)?;
+            if let Some(n) = statistics {
+                bench_statistics(n)?;
+            }
             bench(&atoms, steps, warmup, json.as_deref(), stages)?;
         }
         Cmd::Eos {
@@ -173,6 +185,34 @@ fn default_out(setup: &Path) -> PathBuf {
     PathBuf::from("runs").join(stem)
 }
 
+/// Adds the `--until-stderr` targets to the setup (replacing a target the setup has for the
+/// same quantity). Each is `QUANTITY=STDERR` with the standard error in reduced units.
+fn add_precision_flags(setup: &mut Setup, flags: &[String]) -> Result<(), CliError> {
+    for flag in flags {
+        let bad = |why: &str| {
+            CliError::BadInput(format!(
+                "--until-stderr: {flag:?} is out of range; allowed: QUANTITY=STDERR with {why}"
+            ))
+        };
+        let (name, value) = flag
+            .split_once('=')
+            .ok_or_else(|| bad("an '=' between quantity and standard error"))?;
+        let quantity = Quantity::from_name(name).ok_or_else(|| {
+            bad("QUANTITY one of temperature, pressure, potential_energy, total_energy, conserved_energy")
+        })?;
+        let stderr: f64 = value
+            .trim()
+            .parse()
+            .map_err(|_| bad("STDERR a number in reduced units, e.g. pressure=0.005"))?;
+        setup.precision_targets.retain(|t| t.quantity != quantity);
+        setup.precision_targets.push(PrecisionSetting {
+            quantity,
+            stderr: StandardError::Reduced(stderr),
+        });
+    }
+    Ok(())
+}
+
 fn run_to_end(
     session: Session,
     fresh: bool,
@@ -180,16 +220,31 @@ fn run_to_end(
     threads: usize,
     run: &RunFlags,
 ) -> Result<(), CliError> {
+    let interrupt = Arc::new(AtomicBool::new(false));
+    let flag = interrupt.clone();
+    // Ctrl-C stops after the present step with every file written; a second one is not caught
+    // differently (the run is already stopping). Failing to install the handler (e.g. one is
+    // set already) only loses that convenience.
+    let _ = ctrlc::set_handler(move || flag.store(true, Ordering::Relaxed));
     let opts = HeadlessOptions {
         until_step: run.steps,
         out: out.clone(),
         threads,
         quiet: run.quiet,
         overwrite: run.overwrite,
+        interrupt: Some(interrupt),
     };
     let summary = headless::run(session, fresh, &opts)?;
     if !run.quiet {
         output::run_report(&summary, &out);
+    }
+    if summary.stopped_because == StopReason::Interrupted {
+        return Err(CliError::Interrupted(format!(
+            "interrupted at step {}; {} holds the run so far, and `noblescope resume {}` continues it",
+            summary.steps,
+            out.display(),
+            out.join("final.checkpoint").display()
+        )));
     }
     Ok(())
 }
@@ -267,6 +322,19 @@ fn bench(
     if let Some(path) = json {
         let text = serde_json::to_string_pretty(&results).map_err(|e| CliError::Failed(e.to_string()))?;
         std::fs::write(path, text).map_err(|e| CliError::Failed(format!("{}: {e}", path.display())))?;
+    }
+    Ok(())
+}
+
+/// `bench --statistics N`: one refresh of the evidence of all quantities at N samples.
+fn bench_statistics(samples: usize) -> Result<(), CliError> {
+    if !(1000..=DEFAULT_CAPACITY).contains(&samples) {
+        return Err(CliError::BadInput(format!(
+            "--statistics: {samples} is out of range; allowed: 1000 to {DEFAULT_CAPACITY} (the store's capacity)"
+        )));
+    }
+    for r in noblescope::engine::bench_statistics::measure(samples, 5) {
+        output::bench_statistics_row(&r);
     }
     Ok(())
 }

@@ -19,6 +19,10 @@ pub enum CliError {
     /// not open (exit code 1).
     #[error("{0}")]
     Failed(String),
+    /// The user stopped a run with Ctrl-C; its files were written (exit code 130, the shell's
+    /// code for a process ended by SIGINT).
+    #[error("{0}")]
+    Interrupted(String),
 }
 
 impl From<RunError> for CliError {
@@ -30,7 +34,8 @@ impl From<RunError> for CliError {
     }
 }
 
-/// The process exit code of a command: 0 on success, 2 for bad input, 1 for a failure; the
+/// The process exit code of a command: 0 on success, 2 for bad input, 1 for a failure, 130
+/// for a run stopped by Ctrl-C; the
 /// error is printed to stderr as "error: …".
 pub fn exit_code(result: Result<(), CliError>) -> ExitCode {
     match result {
@@ -40,6 +45,7 @@ pub fn exit_code(result: Result<(), CliError>) -> ExitCode {
             ExitCode::from(match e {
                 CliError::BadInput(_) => 2,
                 CliError::Failed(_) => 1,
+                CliError::Interrupted(_) => 130,
             })
         }
     }

@@ -1,6 +1,7 @@
 //! What the command line prints: the run report, the tuning tables and the bench table.
 
 use noblescope::engine::bench::{BenchResult, StageReport};
+use noblescope::engine::bench_statistics::StatisticsBench;
 use noblescope::engine::tuning::{FLUCTUATION_LIMIT, TuneInput, TuningReport};
 use noblescope::io::Setup;
 use noblescope::io::setup::Length;
@@ -52,6 +53,18 @@ pub fn run_report(summary: &Summary, out: &Path) {
         );
     }
     println!("  {MODEL_CAUTION}");
+}
+
+/// One line of `bench --statistics`.
+pub fn bench_statistics_row(r: &StatisticsBench) {
+    println!(
+        "statistics refresh, {} samples of 7 series ({}): {:.1} ms best, {:.1} ms median on one core; store {:.1} MB",
+        r.samples,
+        r.shape,
+        r.best_ms,
+        r.median_ms,
+        r.store_bytes as f64 / 1e6
+    );
 }
 
 /// Both tables of a tuning scan: timesteps in the unit `input` typed them in (the setup's) and

@@ -4,15 +4,20 @@
 use super::analyses::{Analyses, Cadence};
 use super::session::Session;
 use super::watchdog::Alarm;
+use crate::analysis::StartChoice;
+use crate::analysis::eos_reference::{self, RunState};
+use crate::analysis::precision;
 use crate::io::analysis_files::{analysis_files, species_labels};
 use crate::io::energy_log::EnergyLog;
 use crate::io::run_folder::{self, FolderError, StagedRun};
-use crate::io::summary::{RunFacts, Summary};
+use crate::io::summary::{RunFacts, StopReason, Summary};
 use crate::io::trajectory;
-use crate::physics::Observables;
+use crate::physics::PotentialMode;
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use std::io::{BufWriter, IsTerminal, Write};
 use std::path::{Path, PathBuf};
+use std::sync::Arc;
+use std::sync::atomic::{AtomicBool, Ordering};
 use std::time::Instant;
 
 /// How a headless run is carried out.
@@ -27,6 +32,9 @@ pub struct HeadlessOptions {
     pub quiet: bool,
     /// Replace the files of an earlier run in `out`.
     pub overwrite: bool,
+    /// Set from outside (Ctrl-C) to stop after the present step; the run then ends as if it
+    /// had reached its steps, with `stopped_because: "interrupted"`.
+    pub interrupt: Option<Arc<AtomicBool>>,
 }
 
 /// Why a headless run stopped early.
@@ -97,7 +105,7 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
         )),
         None => None,
     };
-    let mut samples: Vec<Observables> = Vec::new();
+    let mut last_drift = session.observe().drift;
     let mut analyses = Analyses::new(
         session.simulation(),
         Cadence {
@@ -108,9 +116,9 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
         },
     );
     if fresh {
+        // The session holds this first sample already.
         let o = session.observe();
         log.write(&o).map_err(|e| io_err("energy.csv", e))?;
-        samples.push(o);
         if let Some(t) = traj.as_mut() {
             let sim = session.simulation();
             trajectory::write_frame(t, sim.system(), &units, sim.step_count(), sim.time())
@@ -122,11 +130,19 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
     let atoms = session.simulation().system().len();
     let mut failure = None;
     let mut warnings = Vec::new();
+    let mut stopped_because = StopReason::Steps;
     while session.simulation().step_count() < until {
+        if opts.interrupt.as_ref().is_some_and(|f| f.load(Ordering::Relaxed)) {
+            stopped_because = StopReason::Interrupted;
+            break;
+        }
         let out = session.step();
         if let Some(o) = out.sample {
             log.write(&o).map_err(|e| io_err("energy.csv", e))?;
-            samples.push(o);
+            last_drift = o.drift;
+        }
+        if out.precision_met.is_some() {
+            stopped_because = StopReason::Precision;
         }
         if let Some(alarm) = out.alarm {
             match alarm {
@@ -151,6 +167,9 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
         analyses.after_step(session.simulation());
         if step.is_multiple_of(64) {
             bar.set_position(step - start_step);
+        }
+        if stopped_because == StopReason::Precision {
+            break;
         }
     }
     bar.finish_and_clear();
@@ -189,8 +208,22 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
         .save(&staged.path().join("final.checkpoint"))
         .map_err(|e| RunError::Failed(e.to_string()))?;
     let sim = session.simulation();
+    let evidence = session.evidence(StartChoice::Automatic);
+    let spec = sim.spec();
+    let equation_of_state = (spec.kinds.len() == 1).then(|| {
+        eos_reference::compare(
+            &evidence,
+            RunState {
+                density: sim.system().density(),
+                bath_temperature: session.thermostatted().then_some(spec.temperature),
+                single_species: true,
+                shifted_force: spec.potential == PotentialMode::ShiftedForce,
+            },
+        )
+    });
     let summary = Summary::new(
-        &samples,
+        session.samples(),
+        &evidence,
         units,
         RunFacts {
             title: setup.title.clone(),
@@ -203,6 +236,10 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
             steps_run: sim.step_count() - start_step,
             wall_seconds: wall,
             threads: opts.threads,
+            relative_energy_drift: last_drift,
+            stopped_because,
+            precision: precision::progress(&evidence, session.precision_targets()),
+            equation_of_state,
         },
     );
     let mut summary = summary;

@@ -4,6 +4,7 @@
 
 pub mod analyses;
 pub mod bench;
+pub mod bench_statistics;
 pub mod frame;
 pub mod headless;
 pub mod live_analyses;

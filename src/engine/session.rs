@@ -3,6 +3,8 @@
 
 use super::watchdog::Alarm;
 use super::watchdog::Watchdog;
+use crate::analysis::precision::{self, PrecisionTarget, TargetProgress};
+use crate::analysis::{Evidence, SampleStore, StartChoice, analyse};
 use crate::io::checkpoint::Checkpoint;
 use crate::io::setup::{Duration, Ensemble, Length, Setup, SetupError, Temperature};
 use crate::physics::{Observables, PotentialMode, Simulation, Thermostat, UnitSystem};
@@ -12,6 +14,10 @@ pub struct Session {
     setup: Setup,
     sim: Simulation,
     watchdog: Watchdog,
+    /// Every sample of the run so far (bounded), including those before a checkpoint.
+    samples: SampleStore,
+    /// The setup's precision targets in reduced units.
+    targets: Vec<PrecisionTarget>,
 }
 
 /// What one step produced.
@@ -21,17 +27,25 @@ pub struct StepOutcome {
     pub sample: Option<Observables>,
     /// Set when the watchdog fired.
     pub alarm: Option<Alarm>,
+    /// Set at the sample where every precision target was found met (see
+    /// [`precision::is_check_point`] for when they are checked).
+    pub precision_met: Option<Vec<TargetProgress>>,
 }
 
 impl Session {
     /// Validates the setup and builds its start configuration.
     pub fn new(setup: Setup) -> Result<Session, SetupError> {
         let spec = setup.resolve_for_this_machine()?;
+        let targets = setup.precision_targets_reduced()?;
         let sim = Simulation::new(spec)?;
+        let mut samples = SampleStore::default();
+        samples.push(&sim.observe());
         Ok(Session {
             setup,
             sim,
             watchdog: Watchdog::default(),
+            samples,
+            targets,
         })
     }
 
@@ -40,11 +54,20 @@ impl Session {
         // Setup, spec and state checked as strictly as a setup file; the spec carries live changes.
         c.check()?;
         c.setup.check_memory_available()?;
+        let targets = c.setup.precision_targets_reduced()?;
         let sim = Simulation::from_state(c.spec, c.state)?;
+        // A version 2 checkpoint has no samples: the statistics start at its step.
+        let samples = c.samples.unwrap_or_else(|| {
+            let mut s = SampleStore::default();
+            s.push(&sim.observe());
+            s
+        });
         Ok(Session {
             setup: c.setup,
             sim,
             watchdog: Watchdog::default(),
+            samples,
+            targets,
         })
     }
 
@@ -78,7 +101,45 @@ impl Session {
             },
             spec: self.sim.spec().clone(),
             state: self.sim.state(),
+            samples: Some(self.samples.clone()),
         }
+    }
+
+    /// Every sample so far (bounded; see [`SampleStore`]).
+    pub fn samples(&self) -> &SampleStore {
+        &self.samples
+    }
+
+    /// Forgets the samples after `step` (after a rewind to it).
+    pub fn forget_samples_after(&mut self, step: u64) {
+        self.samples.truncate_after(step);
+    }
+
+    /// The precision targets in force, reduced units.
+    pub fn precision_targets(&self) -> &[PrecisionTarget] {
+        &self.targets
+    }
+
+    /// Replaces the precision targets (the setup records them too); validated as in a setup.
+    pub fn set_precision_targets(
+        &mut self,
+        targets: Vec<crate::io::precision_setting::PrecisionSetting>,
+    ) -> Result<(), SetupError> {
+        let mut setup = self.setup.clone();
+        setup.precision_targets = targets;
+        self.targets = setup.precision_targets_reduced()?;
+        self.setup = setup;
+        Ok(())
+    }
+
+    /// True when a bath holds the temperature.
+    pub fn thermostatted(&self) -> bool {
+        !matches!(self.setup.ensemble, Ensemble::Nve)
+    }
+
+    /// The equilibration evidence of the run so far.
+    pub fn evidence(&self, choice: StartChoice) -> Evidence {
+        analyse(&self.samples, choice, self.thermostatted())
     }
 
     /// The sample of the present state.
@@ -94,13 +155,25 @@ impl Session {
             return StepOutcome {
                 sample: None,
                 alarm: Some(Watchdog::blowup(&b)),
+                precision_met: None,
             };
         }
         let mut out = StepOutcome::default();
         if self.sim.step_count().is_multiple_of(self.setup.sample_every) {
             let o = self.sim.observe();
             out.alarm = self.watchdog.check(&self.sim, &o);
+            self.samples.push(&o);
             out.sample = Some(o);
+            if out.alarm.is_none()
+                && !self.targets.is_empty()
+                && precision::is_check_point(self.samples.raw_samples())
+            {
+                let evidence = self.evidence(StartChoice::Automatic);
+                let progress = precision::progress(&evidence, &self.targets);
+                if precision::all_met(&evidence, &progress) {
+                    out.precision_met = Some(progress);
+                }
+            }
         }
         out
     }

@@ -1,10 +1,11 @@
 //! Checkpoints: the exact state of a run, written atomically.
 //!
 //! Layout (all integers little-endian):
-//! `NOBLESCOPE-STATE 2\n`, u64 header length, a JSON header (setup, spec, scalars), then the raw
+//! `NOBLESCOPE-STATE 3\n`, u64 header length, a JSON header (setup, spec, scalars), then the raw
 //! arrays — types (u8 × N), positions and velocities (f64 × 3N each), list reference positions
-//! (f32 × 3N) —
-//! and an FNV-1a 64 checksum of everything before it. Floats are stored as their bits, so a
+//! (f32 × 3N) —, the sample store's entries when the header lists a store
+//! ([`super::checkpoint_samples`]), and an FNV-1a 64 checksum of everything before it. Version 2
+//! files (the same without a sample store) are still read. Floats are stored as their bits, so a
 //! continued run is bit-for-bit the run that was saved.
 //!
 //! Reading never trusts a length from the file: the whole file is read through a cap
@@ -13,13 +14,17 @@
 //! allocated from them. A decoded checkpoint is then checked like a setup file
 //! ([`Checkpoint::check`]).
 
+use super::checkpoint_samples::{self, MAX_SAMPLES_BYTES, SamplesHeader};
+use crate::analysis::SampleStore;
 use crate::io::setup::{MAX_ATOMS, MAX_SETUP_BYTES, Setup, SetupError};
 use crate::physics::{SimulationSpec, SimulationState};
 use serde::{Deserialize, Serialize};
 use std::io::Write;
 use std::path::Path;
 
-const MAGIC: &[u8] = b"NOBLESCOPE-STATE 2\n";
+const MAGIC: &[u8] = b"NOBLESCOPE-STATE 3\n";
+/// The magic of version 2 files, read too; same length as [`MAGIC`].
+const MAGIC_V2: &[u8] = b"NOBLESCOPE-STATE 2\n";
 /// Type, position, velocity and list reference of one atom.
 const BYTES_PER_ATOM: usize = 1 + 24 + 24 + 12;
 
@@ -32,7 +37,7 @@ pub const MAX_HEADER_BYTES: u64 = 8 * MAX_SETUP_BYTES + 4096;
 /// Largest checkpoint file read: magic, length, the largest header and the arrays of
 /// [`MAX_ATOMS`] atoms, plus the checksum (about 63 MB).
 pub const MAX_CHECKPOINT_BYTES: u64 =
-    MAGIC.len() as u64 + 8 + MAX_HEADER_BYTES + MAX_ATOMS * BYTES_PER_ATOM as u64 + 8;
+    MAGIC.len() as u64 + 8 + MAX_HEADER_BYTES + MAX_ATOMS * BYTES_PER_ATOM as u64 + MAX_SAMPLES_BYTES + 8;
 
 /// What a checkpoint holds.
 #[derive(Clone, Debug, PartialEq)]
@@ -42,6 +47,8 @@ pub struct Checkpoint {
     /// The spec in force when saved.
     pub spec: SimulationSpec,
     pub state: SimulationState,
+    /// The followed quantities of the run so far (absent in version 2 files).
+    pub samples: Option<SampleStore>,
 }
 
 #[derive(Serialize, Deserialize)]
@@ -56,6 +63,8 @@ struct Header {
     heat: f64,
     drift_origin: f64,
     drift_scale: f64,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    samples: Option<SamplesHeader>,
 }
 
 /// Why a checkpoint could not be read or written.
@@ -92,6 +101,13 @@ impl Checkpoint {
     /// Encodes to bytes.
     pub fn to_bytes(&self) -> Vec<u8> {
         let s = &self.state;
+        let (samples_header, samples_bytes) = match &self.samples {
+            Some(store) => {
+                let (h, b) = checkpoint_samples::encode(store);
+                (Some(h), b)
+            }
+            None => (None, Vec::new()),
+        };
         let header = Header {
             setup_ron: self.setup.to_ron(),
             spec: self.spec.clone(),
@@ -103,6 +119,7 @@ impl Checkpoint {
             heat: s.heat,
             drift_origin: s.drift_origin,
             drift_scale: s.drift_scale,
+            samples: samples_header,
         };
         let json = serde_json::to_vec(&header).expect("header serialises");
         let n = s.positions.len();
@@ -123,6 +140,7 @@ impl Checkpoint {
                 out.extend_from_slice(&x.to_bits().to_le_bytes());
             }
         }
+        out.extend_from_slice(&samples_bytes);
         let sum = fnv1a(&out);
         out.extend_from_slice(&sum.to_le_bytes());
         out
@@ -134,7 +152,9 @@ impl Checkpoint {
             file: file.into(),
             message: m.into(),
         };
-        if bytes.len() < MAGIC.len() + 16 || &bytes[..MAGIC.len()] != MAGIC {
+        if bytes.len() < MAGIC.len() + 16
+            || (&bytes[..MAGIC.len()] != MAGIC && &bytes[..MAGIC.len()] != MAGIC_V2)
+        {
             return Err(bad("missing header"));
         }
         let (body, tail) = bytes.split_at(bytes.len() - 8);
@@ -168,7 +188,16 @@ impl Checkpoint {
         })?;
         at += hlen;
         let n = header.atoms;
-        if n.checked_mul(BYTES_PER_ATOM) != Some(body.len() - at) {
+        let samples_bytes = match &header.samples {
+            Some(h) => h
+                .section_bytes()
+                .ok_or_else(|| bad("sample store larger than any run keeps"))?,
+            None => 0,
+        };
+        if n.checked_mul(BYTES_PER_ATOM)
+            .and_then(|b| b.checked_add(samples_bytes))
+            != Some(body.len() - at)
+        {
             return Err(bad("array sizes do not match the atom count"));
         }
         let types = body[at..at + n].to_vec();
@@ -187,6 +216,13 @@ impl Checkpoint {
         let list_reference = triples(take(12 * n), |b| {
             f32::from_bits(u32::from_le_bytes(b.try_into().unwrap()))
         });
+        let samples = match &header.samples {
+            Some(h) => Some(
+                checkpoint_samples::decode(h, take(samples_bytes))
+                    .map_err(|m| bad(&format!("sample store: {m}")))?,
+            ),
+            None => None,
+        };
         let setup = Setup::parse(&header.setup_ron, &format!("{file} (embedded setup)"))
             .map_err(|e| bad(&e.to_string()))?;
         Ok(Checkpoint {
@@ -205,6 +241,7 @@ impl Checkpoint {
                 drift_origin: header.drift_origin,
                 drift_scale: header.drift_scale,
             },
+            samples,
         })
     }
 

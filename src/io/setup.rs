@@ -2,6 +2,7 @@
 //! [`SimulationSpec`] in reduced units.
 
 use crate::io::numbers::{format_limit, format_number};
+use crate::io::precision_setting::PrecisionSetting;
 use crate::physics::lattice::whole_counts;
 use crate::physics::{PotentialMode, SimulationSpec, Species, Thermostat, UnitSystem};
 use serde::{Deserialize, Serialize};
@@ -171,6 +172,10 @@ pub struct Setup {
     /// first `steps` steps (heating a crystal through melting, cooling a liquid).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub temperature_ramp: Option<TemperatureRamp>,
+    /// Stop once these standard errors are reached after the detected equilibration start
+    /// (`steps` stays the upper limit); see [`crate::io::precision_setting`].
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub precision_targets: Vec<PrecisionSetting>,
 }
 
 fn default_skin() -> Length {
@@ -587,6 +592,7 @@ impl Setup {
         if let Some(r) = self.temperature_ramp {
             self.ramp_end(r)?;
         }
+        self.precision_targets_reduced()?;
         let shares: Vec<f64> = self.species.iter().map(|s| s.share).collect();
         let spec = SimulationSpec {
             kinds: self.species.iter().map(|s| s.kind).collect(),

@@ -1,7 +1,11 @@
 //! `summary.json`: averages of a finished run with their standard errors.
 
-use crate::analysis::{Diffusion, Estimate, SpeedHistogram, block_average, detect_equilibration};
-use crate::physics::{Observables, UnitSystem};
+use crate::analysis::eos_reference::{EosComparison, TemperatureSource};
+use crate::analysis::{
+    Diffusion, Estimate, Evidence, Quantity, SampleStore, SpeedHistogram, TargetProgress, block_average,
+};
+use crate::physics::UnitSystem;
+use crate::physics::lj_eos::Region;
 use serde::Serialize;
 
 /// Said wherever results could be mistaken for engineering data.
@@ -64,17 +68,96 @@ pub struct SiUnits {
     pub self_diffusion: &'static str,
 }
 
-/// Equilibration detected on the potential-energy series of the whole run.
+/// Equilibration detected on the run's samples.
 #[derive(Clone, Debug, Serialize)]
 pub struct EquilibrationSummary {
-    /// First step that automated detection (Chodera 2016) counts as equilibrated.
+    /// First step that automated detection (Chodera 2016) counts as equilibrated: the latest of
+    /// the starts detected on temperature, pressure, potential energy (and total energy with a
+    /// bath), on at most 100 candidate starts after the first 1 % of samples.
     pub detected_start_step: u64,
     /// The setup's `equilibration_steps`, for comparison.
     pub configured_start_step: u64,
+    /// Of the potential energy from the detected start, in samples.
     pub statistical_inefficiency: f64,
     pub effective_samples: f64,
     /// True when the detected start lies after the configured one: averages may include drift.
     pub configured_start_too_early: bool,
+    /// True when every deciding quantity is equilibrated.
+    pub equilibrated: bool,
+    /// The overall verdict in words.
+    pub verdict: String,
+}
+
+/// Statistics of one quantity from the detected equilibration start.
+#[derive(Clone, Copy, Debug, Serialize)]
+pub struct QuantitySummary {
+    pub mean: f64,
+    /// √(σ² g / n).
+    pub stderr: f64,
+    /// g, in samples (`sample_every` steps each).
+    pub statistical_inefficiency: f64,
+    pub effective_samples: f64,
+    pub start_step: u64,
+    /// The means of the first and last thirds after the start differ by more than 3 combined
+    /// standard errors.
+    pub drifting: bool,
+    /// "equilibrated", "drifting" or "not yet".
+    pub verdict: &'static str,
+    /// The plateau of the block-averaging curve (Flyvbjerg & Petersen 1989), beside `stderr`.
+    pub block_stderr: f64,
+}
+
+/// [`QuantitySummary`] of each followed quantity (reduced units, energies per atom).
+#[derive(Clone, Copy, Debug, Serialize)]
+pub struct QuantitiesSummary {
+    pub temperature: QuantitySummary,
+    pub pressure: QuantitySummary,
+    pub potential_energy_per_atom: QuantitySummary,
+    pub total_energy_per_atom: QuantitySummary,
+    pub conserved_energy_per_atom: QuantitySummary,
+}
+
+/// Why a run stopped.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum StopReason {
+    /// It ran its steps.
+    Steps,
+    /// Every precision target was met.
+    Precision,
+    /// The watchdog stopped it.
+    Alarm,
+    /// The user stopped it (Ctrl-C).
+    Interrupted,
+}
+
+/// One precision target at the end of the run.
+#[derive(Clone, Debug, Serialize)]
+pub struct PrecisionSummary {
+    pub quantity: &'static str,
+    /// The target, reduced units.
+    pub target_stderr: f64,
+    pub stderr: f64,
+    pub met: bool,
+}
+
+/// The published equation of state at the run's state (single-species runs).
+#[derive(Clone, Debug, Serialize)]
+pub struct EquationOfStateSummary {
+    /// Pressure and residual energy per atom of Thol et al. (2016); null when not shown.
+    pub pressure: Option<f64>,
+    pub residual_energy: Option<f64>,
+    /// "vapour", "liquid", "supercritical", "two-phase" or "outside the validated range".
+    pub region: &'static str,
+    /// Why the values are null, if they are.
+    pub not_shown_because: Option<&'static str>,
+    pub temperature: f64,
+    /// "bath" or "running mean".
+    pub temperature_from: &'static str,
+    pub density: f64,
+    /// The run's full-potential estimates (shift added back, tail corrections), to compare.
+    pub run_full_potential_pressure: Estimate,
+    pub run_full_potential_residual_energy: Estimate,
 }
 
 /// Everything in `summary.json`; values in reduced units of the reference species.
@@ -84,8 +167,11 @@ pub struct Summary {
     pub reference_species: String,
     pub atoms: usize,
     pub steps: u64,
-    pub samples_used: usize,
+    /// Samples at or after `equilibration_steps` (the averages just below).
+    pub samples_used: u64,
     pub density: f64,
+    /// Averages from the setup's `equilibration_steps` on (block averaging); see `quantities`
+    /// for the averages from the detected start.
     pub potential_energy_per_atom: Estimate,
     pub pressure: Estimate,
     pub temperature: Estimate,
@@ -95,6 +181,12 @@ pub struct Summary {
     pub wall_seconds: f64,
     pub threads: usize,
     pub equilibration: EquilibrationSummary,
+    pub quantities: QuantitiesSummary,
+    pub stopped_because: StopReason,
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub precision_targets: Vec<PrecisionSummary>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub equation_of_state: Option<EquationOfStateSummary>,
     pub si: Option<SiSummary>,
     /// σ²/τ; present when the run sampled its dynamics (`dynamics_every`).
     #[serde(skip_serializing_if = "Option::is_none")]
@@ -117,23 +209,36 @@ pub struct RunFacts {
     pub steps_run: u64,
     pub wall_seconds: f64,
     pub threads: usize,
+    /// Relative drift of the conserved energy at the last sample.
+    pub relative_energy_drift: f64,
+    pub stopped_because: StopReason,
+    pub precision: Vec<TargetProgress>,
+    /// For single-species runs.
+    pub equation_of_state: Option<EosComparison>,
+}
+
+fn quantity_summary(e: &Evidence, q: Quantity) -> QuantitySummary {
+    let r = e.row(q);
+    QuantitySummary {
+        mean: r.stats.mean,
+        stderr: r.stats.stderr,
+        statistical_inefficiency: r.inefficiency_in_samples(e.width),
+        effective_samples: r.stats.effective_samples,
+        start_step: e.start_step,
+        drifting: r.drifting(),
+        verdict: r.verdict.short(),
+        block_stderr: r.stats.block_plateau,
+    }
 }
 
 impl Summary {
-    /// Averages the samples at or after `equilibration_steps`.
-    pub fn new(samples: &[Observables], units: UnitSystem, facts: RunFacts) -> Summary {
-        let used: Vec<&Observables> = samples
-            .iter()
-            .filter(|o| o.step >= facts.equilibration_steps)
-            .collect();
-        let est =
-            |f: &dyn Fn(&Observables) -> f64| block_average(&used.iter().map(|o| f(o)).collect::<Vec<_>>());
-        let pe = est(&|o| o.potential);
-        let p = est(&|o| o.pressure);
-        let t = est(&|o| o.temperature);
-        let pe_all: Vec<f64> = samples.iter().map(|o| o.potential).collect();
-        let eq = detect_equilibration(&pe_all, (pe_all.len() / 200).max(1));
-        let detected = samples.get(eq.start).map(|o| o.step).unwrap_or(0);
+    /// The summary of a run from its samples and their evidence (automatic start).
+    pub fn new(store: &SampleStore, evidence: &Evidence, units: UnitSystem, facts: RunFacts) -> Summary {
+        let first = store.steps().partition_point(|&s| s < facts.equilibration_steps);
+        let est = |q: Quantity| block_average(&store.values(q)[first..]);
+        let pe = est(Quantity::PotentialEnergy);
+        let p = est(Quantity::Pressure);
+        let t = est(Quantity::Temperature);
         let scale = |e: Estimate, k: f64| Estimate {
             mean: e.mean * k,
             stderr: e.stderr * k,
@@ -153,17 +258,20 @@ impl Summary {
             },
         });
         let wall = facts.wall_seconds.max(1e-9);
+        let pe_row = evidence.row(Quantity::PotentialEnergy);
+        let detected = evidence.start_step;
+        let time_text = |t: f64| format!("{} τ", crate::io::numbers::significant(t, 4));
         Summary {
             title: facts.title,
             reference_species: units.reference.label().into(),
             atoms: facts.atoms,
             steps: facts.steps,
-            samples_used: used.len(),
+            samples_used: (store.len() - first) as u64 * store.width(),
             density: facts.density,
             potential_energy_per_atom: pe,
             pressure: p,
             temperature: t,
-            relative_energy_drift: samples.last().map(|o| o.drift).unwrap_or(0.0),
+            relative_energy_drift: facts.relative_energy_drift,
             neighbour_list_builds: facts.neighbour_list_builds,
             atom_steps_per_second: facts.atoms as f64 * facts.steps_run as f64 / wall,
             wall_seconds: facts.wall_seconds,
@@ -171,10 +279,47 @@ impl Summary {
             equilibration: EquilibrationSummary {
                 detected_start_step: detected,
                 configured_start_step: facts.equilibration_steps,
-                statistical_inefficiency: eq.inefficiency,
-                effective_samples: eq.effective_samples,
+                statistical_inefficiency: pe_row.inefficiency_in_samples(evidence.width),
+                effective_samples: pe_row.stats.effective_samples,
                 configured_start_too_early: detected > facts.equilibration_steps,
+                equilibrated: evidence.overall.is_equilibrated(),
+                verdict: evidence.overall.words(time_text),
             },
+            quantities: QuantitiesSummary {
+                temperature: quantity_summary(evidence, Quantity::Temperature),
+                pressure: quantity_summary(evidence, Quantity::Pressure),
+                potential_energy_per_atom: quantity_summary(evidence, Quantity::PotentialEnergy),
+                total_energy_per_atom: quantity_summary(evidence, Quantity::TotalEnergy),
+                conserved_energy_per_atom: quantity_summary(evidence, Quantity::ConservedEnergy),
+            },
+            stopped_because: facts.stopped_because,
+            precision_targets: facts
+                .precision
+                .iter()
+                .map(|p| PrecisionSummary {
+                    quantity: p.target.quantity.key(),
+                    target_stderr: p.target.stderr,
+                    stderr: p.stderr,
+                    met: p.met,
+                })
+                .collect(),
+            equation_of_state: facts.equation_of_state.map(|c| EquationOfStateSummary {
+                pressure: c.pressure,
+                residual_energy: c.residual_energy,
+                region: c
+                    .region
+                    .map(|r| r.word())
+                    .unwrap_or(Region::OutsideValidatedRange.word()),
+                not_shown_because: c.hidden.map(|h| h.words()),
+                temperature: c.temperature,
+                temperature_from: match c.temperature_source {
+                    TemperatureSource::Bath => "bath",
+                    TemperatureSource::RunningMean => "running mean",
+                },
+                density: c.density,
+                run_full_potential_pressure: c.run_pressure,
+                run_full_potential_residual_energy: c.run_residual_energy,
+            }),
             si,
             self_diffusion: None,
             speeds: Vec::new(),

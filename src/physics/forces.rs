@@ -13,6 +13,9 @@ pub struct ForceSums {
     pub potential: f64,
     /// Σ r_ij · f_ij over pairs.
     pub virial: f64,
+    /// Σ of the energy shifts taken off the pairs inside the cutoff (zero for `Truncated`):
+    /// `potential + shift_removed` is the truncated, unshifted pair energy.
+    pub shift_removed: f64,
 }
 
 /// Scratch for per-slab sums, owned by the caller so a step allocates nothing.
@@ -74,6 +77,7 @@ pub fn compute(
     for s in &scratch.slab_sums {
         total.potential += s.potential;
         total.virial += s.virial;
+        total.shift_removed += s.shift_removed;
     }
     total
 }
@@ -144,7 +148,7 @@ impl Ctx<'_> {
             energy: [0.0; BLOCK],
             f_over_r: [0.0; BLOCK],
         };
-        let (mut energy, mut virial) = (0.0, 0.0);
+        let (mut energy, mut virial, mut shift_removed) = (0.0, 0.0, 0.0);
         for &i in self.list.slab(s) {
             let i = i as usize;
             let pi = self.positions[i];
@@ -197,6 +201,7 @@ impl Ctx<'_> {
                 for k in 0..m {
                     energy += b.energy[k];
                     virial += b.f_over_r[k] * b.r2[k];
+                    shift_removed += if b.r2[k] < rc2 { b.shift[k] } else { 0.0 };
                 }
                 // Scatter: Newton's third law onto the partners.
                 for (k, &j) in block.iter().enumerate() {
@@ -222,6 +227,7 @@ impl Ctx<'_> {
         ForceSums {
             potential: energy,
             virial,
+            shift_removed,
         }
     }
 }
@@ -245,6 +251,7 @@ pub fn brute_force(
             let (e, f_over_r) = table.evaluate(types[i] as usize, types[j] as usize, r2);
             sums.potential += e;
             sums.virial += f_over_r * r2;
+            sums.shift_removed += table.pair(types[i] as usize, types[j] as usize).energy_shift();
             for k in 0..3 {
                 forces[i][k] += f_over_r * d[k];
                 forces[j][k] -= f_over_r * d[k];

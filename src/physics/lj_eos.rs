@@ -147,7 +147,7 @@ pub struct Saturation {
 }
 
 /// Where a state lies in the phase diagram of the equation.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum Region {
     /// Below T_c, less dense than the saturated vapour.
     Vapour,

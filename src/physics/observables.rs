@@ -19,4 +19,13 @@ pub struct Observables {
     pub pressure: f64,
     /// (E_cons − E_cons(0)) / max(|E_cons(0)|, K(0)): relative drift of the conserved energy.
     pub drift: f64,
+    /// Estimate of the potential energy per atom of the full, untruncated potential: the pair
+    /// energies with the shift added back plus the tail correction (whether or not the run
+    /// applies it). NaN for `ShiftedForce`, whose forces inside the cutoff differ too.
+    #[serde(default)]
+    pub full_potential: f64,
+    /// Estimate of the pressure of the full potential: the virial pressure plus the tail
+    /// correction. NaN for `ShiftedForce`.
+    #[serde(default)]
+    pub full_pressure: f64,
 }

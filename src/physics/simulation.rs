@@ -783,6 +783,23 @@ impl Simulation {
             .sqrt()
     }
 
+    /// Potential energy per atom and pressure of the full, untruncated potential estimated
+    /// from this configuration: shift added back, tail corrections for r > r_c (Allen &
+    /// Tildesley, *Computer Simulation of Liquids*, 2nd ed., §2.8). NaN for `ShiftedForce`.
+    fn full_potential_estimates(&self, temperature: f64) -> (f64, f64) {
+        if self.spec.potential == PotentialMode::ShiftedForce {
+            return (f64::NAN, f64::NAN);
+        }
+        let n = self.system.len() as f64;
+        let rho = self.system.density();
+        let x = self.system.fractions();
+        let u =
+            (self.sums.potential + self.sums.shift_removed) / n + self.table.tail_energy_per_atom(rho, &x);
+        let p = (n * temperature + self.sums.virial / 3.0) / self.system.volume()
+            + self.table.tail_pressure(rho, &x);
+        (u, p)
+    }
+
     /// Measures the present state.
     pub fn observe(&self) -> Observables {
         let n = self.system.len() as f64;
@@ -792,6 +809,7 @@ impl Simulation {
         let e = k + u;
         let conserved = e - self.heat;
         let temperature = 2.0 * k / self.spec.degrees_of_freedom();
+        let (full_u, full_p) = self.full_potential_estimates(temperature);
         Observables {
             step: self.step,
             time: self.time,
@@ -804,6 +822,8 @@ impl Simulation {
             // the canonical pressure also when total momentum is fixed (dof = 3N − 3).
             pressure: (n * temperature + self.sums.virial / 3.0) / v + self.tail_pressure,
             drift: (conserved - self.drift_origin) / self.drift_scale,
+            full_potential: full_u,
+            full_pressure: full_p,
         }
     }
 }

@@ -8,6 +8,7 @@
 
 use super::palette;
 use super::unit_field::{DensityUnit, LengthUnit, RateUnit, TemperatureUnit, TimeUnit, UnitField};
+use crate::io::precision_setting::PrecisionSetting;
 use crate::io::setup::{Ensemble, Setup, SetupError, SpeciesShare, ThermostatChoice};
 use crate::physics::{PotentialMode, Species};
 use std::collections::BTreeMap;
@@ -174,6 +175,8 @@ pub struct SetupForm {
     pub speeds_every: Option<u64>,
     /// Kept from the loaded setup (not edited in the form).
     pub temperature_ramp: Option<crate::io::setup::TemperatureRamp>,
+    /// Kept from the loaded setup (not edited in the form; shown in the statistics panel).
+    pub precision_targets: Vec<PrecisionSetting>,
     /// The setup Apply last refused because it does not fit in memory, and why; shown at the
     /// atoms field while the form still describes that setup.
     pub memory_refusal: Option<(Setup, SetupError)>,
@@ -267,6 +270,7 @@ impl SetupForm {
             dynamics_every: s.dynamics_every,
             speeds_every: s.speeds_every,
             temperature_ramp: s.temperature_ramp,
+            precision_targets: s.precision_targets.clone(),
             memory_refusal: None,
         }
     }
@@ -377,6 +381,7 @@ impl SetupForm {
             dynamics_every: self.dynamics_every,
             speeds_every: self.speeds_every,
             temperature_ramp: self.temperature_ramp,
+            precision_targets: self.precision_targets.clone(),
         };
         (setup, errors)
     }
