@@ -164,3 +164,43 @@ fn bad_sampling_intervals_are_refused_with_field_value_and_range() {
         assert!(!out.exists());
     }
 }
+
+#[test]
+fn g_of_r_reaches_half_the_box_when_asked_and_large_boxes_are_refused_that() {
+    let setup = r#"Setup(
+    species: [(kind: ReducedLJ, share: 1.0)],
+    atoms: 864,
+    density: Reduced(0.8442),
+    temperature: Reduced(0.9),
+    timestep: Reduced(0.005),
+    cutoff: Sigma(2.5),
+    ensemble: Nve,
+    steps: 400,
+    rdf_every: Some(20),
+    rdf_reach: HalfBox,
+)"#;
+    let (o, out) = run("half-box", setup);
+    assert_eq!(o.status.code(), Some(0), "{:?}", text(&o));
+    let r = rows(&std::fs::read_to_string(out.join("rdf.csv")).unwrap());
+    // Box edge (864 / 0.8442)^(1/3) = 10.08 σ: g reaches 5.04 σ, beyond the 2.5 σ cutoff.
+    let last = r.last().unwrap()[0];
+    assert!((last - 5.04).abs() < 0.03, "last bin at {last}");
+    // Far out the liquid is uniform: g ≈ 1 between 4 and 5 σ.
+    let far: Vec<f64> = r
+        .iter()
+        .filter(|x| (4.0..5.0).contains(&x[0]))
+        .map(|x| x[1])
+        .collect();
+    let mean = far.iter().sum::<f64>() / far.len() as f64;
+    assert!((mean - 1.0).abs() < 0.03, "g far out {mean}");
+    let big = setup.replace("atoms: 864", "atoms: 32000");
+    let (o, _) = run("half-box-big", &big);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(
+        text(&o).1.contains(
+            "rdf_reach: HalfBox with 32000 atoms is out of range; allowed: HalfBox up to 20000 atoms"
+        ),
+        "{:?}",
+        text(&o)
+    );
+}

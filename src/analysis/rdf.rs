@@ -130,6 +130,15 @@ impl RadialDistribution {
         self.volume = l * l * l;
     }
 
+    /// Adds the simulation's present configuration over every pair of atoms (for `r_max` up to
+    /// half the box edge; the cost grows as N²).
+    pub fn add_every_pair(&mut self, sim: &Simulation) {
+        let s = sim.system();
+        let n = s.len();
+        let pairs = (0..n).flat_map(|i| (i + 1..n).map(move |j| (i, j)));
+        self.add_typed_pairs(&s.positions, &s.types, s.box_length, pairs);
+    }
+
     /// Adds the simulation's present configuration, using its neighbour list (so `r_max` must
     /// not exceed the cutoff: beyond it the list is incomplete).
     pub fn add(&mut self, sim: &Simulation) {

@@ -17,6 +17,8 @@ pub const SPEED_BINS: usize = 60;
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub struct Cadence {
     pub rdf_every: Option<u64>,
+    /// g(r) out to half the box edge over every pair, instead of to the cutoff.
+    pub rdf_half_box: bool,
     pub dynamics_every: Option<u64>,
     pub speeds_every: Option<u64>,
     /// Steps before this one are left out.
@@ -38,9 +40,14 @@ impl Analyses {
         let system = sim.system();
         Analyses {
             cadence,
-            rdf: cadence
-                .rdf_every
-                .map(|_| RadialDistribution::with_species(spec.cutoff, RDF_BINS, spec.kinds.len())),
+            rdf: cadence.rdf_every.map(|_| {
+                let reach = if cadence.rdf_half_box {
+                    0.5 * system.box_length
+                } else {
+                    spec.cutoff
+                };
+                RadialDistribution::with_species(reach, RDF_BINS, spec.kinds.len())
+            }),
             motion: cadence
                 .dynamics_every
                 .map(|n| SelfMotion::new(system, n as f64 * spec.timestep, LagSchedule::default())),
@@ -81,7 +88,11 @@ impl Analyses {
         if let Some(g) = self.rdf.as_mut()
             && due(self.cadence.rdf_every)
         {
-            g.add(sim);
+            if self.cadence.rdf_half_box {
+                g.add_every_pair(sim);
+            } else {
+                g.add(sim);
+            }
             added = true;
         }
         if let Some(m) = self.motion.as_mut()
@@ -132,6 +143,7 @@ mod tests {
             &sim,
             Cadence {
                 rdf_every: Some(5),
+                rdf_half_box: false,
                 dynamics_every: Some(2),
                 speeds_every: Some(10),
                 from_step: 20,

@@ -110,6 +110,7 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
         session.simulation(),
         Cadence {
             rdf_every: setup.rdf_every,
+            rdf_half_box: setup.rdf_reach == crate::io::setup::RdfReach::HalfBox,
             dynamics_every: setup.dynamics_every,
             speeds_every: setup.speeds_every,
             from_step: setup.equilibration_steps,

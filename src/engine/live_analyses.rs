@@ -36,6 +36,7 @@ impl LiveAnalyses {
             .unwrap_or(((LIVE_DYNAMICS_INTERVAL_TAU / dt).round() as u64).max(1));
         let cadence = Cadence {
             rdf_every: Some(setup.rdf_every.unwrap_or(LIVE_STRUCTURE_EVERY)),
+            rdf_half_box: setup.rdf_reach == crate::io::setup::RdfReach::HalfBox,
             dynamics_every: Some(dynamics),
             speeds_every: Some(setup.speeds_every.unwrap_or(LIVE_STRUCTURE_EVERY)),
             from_step: setup.equilibration_steps.max(sim.step_count()),

@@ -115,6 +115,20 @@ pub struct TemperatureRamp {
     pub steps: u64,
 }
 
+/// How far g(r) reaches.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
+pub enum RdfReach {
+    /// Out to the cutoff, from the neighbour list (cheap).
+    #[default]
+    Cutoff,
+    /// Out to half the box edge, over every pair of atoms (its cost grows as N²).
+    HalfBox,
+}
+
+/// Most atoms for `rdf_reach: HalfBox`: every pair is visited, 2 × 10⁸ pairs a configuration
+/// at this size.
+pub const MAX_ATOMS_HALF_BOX_RDF: u64 = 20_000;
+
 /// Ensemble of the run.
 #[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
 pub enum Ensemble {
@@ -156,9 +170,13 @@ pub struct Setup {
     #[serde(default)]
     pub trajectory_every: Option<u64>,
     /// Add the configuration to the radial distribution function (rdf.csv) every this many
-    /// steps, from `equilibration_steps` on; g(r) reaches out to the cutoff.
+    /// steps, from `equilibration_steps` on; g(r) reaches out to the cutoff or, with
+    /// `rdf_reach: HalfBox`, to half the box edge.
     #[serde(default)]
     pub rdf_every: Option<u64>,
+    /// How far g(r) reaches: the cutoff (default) or half the box edge.
+    #[serde(default, skip_serializing_if = "is_cutoff_reach")]
+    pub rdf_reach: RdfReach,
     /// Add positions and velocities to the mean squared displacement and velocity
     /// autocorrelation (msd.csv, vacf.csv, both self-diffusion estimates) every this many
     /// steps, from `equilibration_steps` on.
@@ -176,6 +194,10 @@ pub struct Setup {
     /// (`steps` stays the upper limit); see [`crate::io::precision_setting`].
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub precision_targets: Vec<PrecisionSetting>,
+}
+
+fn is_cutoff_reach(r: &RdfReach) -> bool {
+    *r == RdfReach::Cutoff
 }
 
 fn default_skin() -> Length {
@@ -574,6 +596,13 @@ impl Setup {
             if every == Some(0) {
                 return Err(SetupError::field(name, "Some(0)", "None or Some(n) with n ≥ 1"));
             }
+        }
+        if self.rdf_reach == RdfReach::HalfBox && self.atoms > MAX_ATOMS_HALF_BOX_RDF {
+            return Err(SetupError::field(
+                "rdf_reach",
+                format!("HalfBox with {} atoms", self.atoms),
+                format!("HalfBox up to {MAX_ATOMS_HALF_BOX_RDF} atoms (every pair is visited), or Cutoff"),
+            ));
         }
         for (name, every) in [
             ("dynamics_every", self.dynamics_every),

@@ -170,6 +170,8 @@ pub struct SetupForm {
     /// Kept from the loaded setup (not edited in the form).
     pub rdf_every: Option<u64>,
     /// Kept from the loaded setup (not edited in the form).
+    pub rdf_reach: crate::io::setup::RdfReach,
+    /// Kept from the loaded setup (not edited in the form).
     pub dynamics_every: Option<u64>,
     /// Kept from the loaded setup (not edited in the form).
     pub speeds_every: Option<u64>,
@@ -267,6 +269,7 @@ impl SetupForm {
             sample_every: s.sample_every.to_string(),
             trajectory_every: s.trajectory_every,
             rdf_every: s.rdf_every,
+            rdf_reach: s.rdf_reach,
             dynamics_every: s.dynamics_every,
             speeds_every: s.speeds_every,
             temperature_ramp: s.temperature_ramp,
@@ -378,6 +381,7 @@ impl SetupForm {
             sample_every,
             trajectory_every: self.trajectory_every,
             rdf_every: self.rdf_every,
+            rdf_reach: self.rdf_reach,
             dynamics_every: self.dynamics_every,
             speeds_every: self.speeds_every,
             temperature_ramp: self.temperature_ramp,
