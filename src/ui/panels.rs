@@ -189,6 +189,9 @@ impl NoblescopeApp {
                     .status
                     .info("Switched to constant energy (NVE); the analyses start again from here.");
             }
+            StructureAction::Picture(rect) => {
+                self.ask_file(ctx, Ask::SavePlotPicture(rect), super::files::pick_png_to_save);
+            }
             StructureAction::Export(file) => {
                 let name = file.file_name();
                 self.ask_file(ctx, Ask::ExportAnalysis(file), move || {

@@ -22,6 +22,8 @@ pub enum StructureAction {
     MeasureInNve,
     /// Export one analysis as CSV.
     Export(AnalysisFile),
+    /// Save a PNG picture of one plot (its place in the window, points).
+    Picture(egui::Rect),
 }
 
 /// Display scales of the running setup: real units for real species, reduced otherwise.
@@ -274,14 +276,26 @@ impl StructurePanel {
         }
         let w = ((ui.available_width() - 12.0) / 2.0).max(200.0);
         let h = ((ui.available_height() - 80.0) / 2.0).clamp(120.0, 320.0);
-        let export = |ui: &mut egui::Ui, file: AnalysisFile, action: &mut Option<StructureAction>| {
-            if ui
-                .small_button(format!("CSV: {}", file.file_name()))
-                .on_hover_text("export this analysis as CSV (the layout of a headless run)")
-                .clicked()
-            {
-                *action = Some(StructureAction::Export(file));
-            }
+        let export = |ui: &mut egui::Ui,
+                      file: AnalysisFile,
+                      plot: egui::Rect,
+                      action: &mut Option<StructureAction>| {
+            ui.horizontal(|ui| {
+                if ui
+                    .small_button(format!("CSV: {}", file.file_name()))
+                    .on_hover_text("export this analysis as CSV (the layout of a headless run)")
+                    .clicked()
+                {
+                    *action = Some(StructureAction::Export(file));
+                }
+                if ui
+                    .small_button("PNG")
+                    .on_hover_text("save a picture of this plot")
+                    .clicked()
+                {
+                    *action = Some(StructureAction::Picture(plot));
+                }
+            });
         };
         ui.horizontal(|ui| {
             ui.vertical(|ui| {
@@ -290,7 +304,7 @@ impl StructurePanel {
                 } else {
                     (&r.rdf, "g(r) [1]".to_string())
                 };
-                plot("structure-rdf", w, h, format!("r [{}]", sc.length_unit), y).show(ui, |p| {
+                let shown = plot("structure-rdf", w, h, format!("r [{}]", sc.length_unit), y).show(ui, |p| {
                     for (k, c) in curves.iter().enumerate() {
                         p.line(line(c, sc.length, 1.0, colour(k)));
                     }
@@ -302,11 +316,11 @@ impl StructurePanel {
                         );
                     }
                 });
-                export(ui, AnalysisFile::Rdf, &mut action);
+                export(ui, AnalysisFile::Rdf, shown.response.rect, &mut action);
             });
             ui.vertical(|ui| {
                 let area = sc.length * sc.length;
-                plot(
+                let shown = plot(
                     "structure-msd",
                     w,
                     h,
@@ -323,12 +337,12 @@ impl StructurePanel {
                         }
                     }
                 });
-                export(ui, AnalysisFile::Msd, &mut action);
+                export(ui, AnalysisFile::Msd, shown.response.rect, &mut action);
             });
         });
         ui.horizontal(|ui| {
             ui.vertical(|ui| {
-                plot(
+                let shown = plot(
                     "structure-vacf",
                     w,
                     h,
@@ -345,10 +359,10 @@ impl StructurePanel {
                             .style(egui_plot::LineStyle::dashed_dense()),
                     );
                 });
-                export(ui, AnalysisFile::Vacf, &mut action);
+                export(ui, AnalysisFile::Vacf, shown.response.rect, &mut action);
             });
             ui.vertical(|ui| {
-                plot(
+                let shown = plot(
                     "structure-speeds",
                     w,
                     h,
@@ -378,7 +392,7 @@ impl StructurePanel {
                     }
                 });
                 ui.horizontal_wrapped(|ui| {
-                    export(ui, AnalysisFile::Speeds, &mut action);
+                    export(ui, AnalysisFile::Speeds, shown.response.rect, &mut action);
                     for s in &r.speeds {
                         let t = if running.units().has_real_units() {
                             format!(
