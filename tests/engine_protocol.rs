@@ -29,6 +29,7 @@ fn small(steps: u64, sample_every: u64) -> Setup {
         trajectory_every: None,
         rdf_every: None,
         rdf_reach: Default::default(),
+        diffusion_window: None,
         dynamics_every: None,
         speeds_every: None,
         temperature_ramp: None,

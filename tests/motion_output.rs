@@ -128,6 +128,7 @@ fn a_reduced_run_writes_reduced_columns_only_and_no_si_section() {
     steps: 400,
     dynamics_every: Some(5),
     speeds_every: Some(100),
+    diffusion_window: Some((Reduced(0.1), Reduced(0.5))),
 )"#;
     let (o, out) = run("reduced", setup);
     assert_eq!(o.status.code(), Some(0), "{:?}", text(&o));
@@ -142,7 +143,25 @@ fn a_reduced_run_writes_reduced_columns_only_and_no_si_section() {
     let summary: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(out.join("summary.json")).unwrap()).unwrap();
     assert!(summary["self_diffusion"]["einstein"]["mean"].is_number());
+    assert_eq!(
+        summary["self_diffusion"]["fit_window"],
+        serde_json::json!([0.1, 0.5])
+    );
     assert!(summary["si"].is_null());
+    // A reversed window is refused.
+    let bad = setup.replace(
+        "Some((Reduced(0.1), Reduced(0.5)))",
+        "Some((Reduced(0.5), Reduced(0.1)))",
+    );
+    let (o, _) = run("reversed-window", &bad);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(
+        text(&o).1.contains(
+            "diffusion_window: (Reduced(0.5), Reduced(0.1)) = 0.5 τ to 0.1 τ is out of range; allowed: (from, to) with 0 ≤ from < to"
+        ),
+        "{:?}",
+        text(&o)
+    );
 }
 
 #[test]

@@ -244,7 +244,17 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
         },
     );
     let mut summary = summary;
-    summary.add_motion(analyses.diffusion(None), analyses.speeds.as_ref(), &labels, units);
+    let window = setup
+        .diffusion_window_tau()
+        .ok()
+        .flatten()
+        .map(|[from, to]| crate::analysis::FitWindow { from, to });
+    summary.add_motion(
+        analyses.diffusion(window),
+        analyses.speeds.as_ref(),
+        &labels,
+        units,
+    );
     staged
         .create("summary.json")
         .and_then(|mut f| f.write_all(summary.to_json().as_bytes()))

@@ -41,6 +41,11 @@ impl LiveAnalyses {
             speeds_every: Some(setup.speeds_every.unwrap_or(LIVE_STRUCTURE_EVERY)),
             from_step: setup.equilibration_steps.max(sim.step_count()),
         };
+        // The window asked for in the panel, else the setup's.
+        let window = window.or_else(|| {
+            let [from, to] = setup.diffusion_window_tau().ok().flatten()?;
+            Some(FitWindow { from, to })
+        });
         LiveAnalyses {
             analyses: Analyses::new(sim, cadence),
             window,

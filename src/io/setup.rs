@@ -186,6 +186,10 @@ pub struct Setup {
     /// `equilibration_steps` on.
     #[serde(default)]
     pub speeds_every: Option<u64>,
+    /// Lag window `(from, to)` of both self-diffusion estimates; None: from 0.1 to 0.4 of the
+    /// span sampled.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub diffusion_window: Option<(Duration, Duration)>,
     /// Under a thermostat: move the bath target linearly from `temperature` to `to` over the
     /// first `steps` steps (heating a crystal through melting, cooling a liquid).
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -621,6 +625,7 @@ impl Setup {
         if let Some(r) = self.temperature_ramp {
             self.ramp_end(r)?;
         }
+        self.diffusion_window_tau()?;
         self.precision_targets_reduced()?;
         let shares: Vec<f64> = self.species.iter().map(|s| s.share).collect();
         let spec = SimulationSpec {
@@ -649,6 +654,27 @@ impl Setup {
         }
         spec.check()?;
         Ok(spec)
+    }
+
+    /// The diffusion fit window in τ, validated: both ends convert, 0 ≤ from < to.
+    pub fn diffusion_window_tau(&self) -> Result<Option<[f64; 2]>, SetupError> {
+        let Some((a, b)) = self.diffusion_window else {
+            return Ok(None);
+        };
+        let from = self.reduced_duration("diffusion_window", a)?;
+        let to = self.reduced_duration("diffusion_window", b)?;
+        if !(from >= 0.0 && to > from && to.is_finite()) {
+            return Err(SetupError::field(
+                "diffusion_window",
+                format!(
+                    "({a:?}, {b:?}) = {} τ to {} τ",
+                    format_limit(from),
+                    format_limit(to)
+                ),
+                "(from, to) with 0 ≤ from < to",
+            ));
+        }
+        Ok(Some([from, to]))
     }
 
     /// The reduced end temperature of a ramp, validated: a thermostat must run, the end

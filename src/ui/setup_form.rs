@@ -172,6 +172,8 @@ pub struct SetupForm {
     /// Kept from the loaded setup (not edited in the form).
     pub rdf_reach: crate::io::setup::RdfReach,
     /// Kept from the loaded setup (not edited in the form).
+    pub diffusion_window: Option<(crate::io::setup::Duration, crate::io::setup::Duration)>,
+    /// Kept from the loaded setup (not edited in the form).
     pub dynamics_every: Option<u64>,
     /// Kept from the loaded setup (not edited in the form).
     pub speeds_every: Option<u64>,
@@ -270,6 +272,7 @@ impl SetupForm {
             trajectory_every: s.trajectory_every,
             rdf_every: s.rdf_every,
             rdf_reach: s.rdf_reach,
+            diffusion_window: s.diffusion_window,
             dynamics_every: s.dynamics_every,
             speeds_every: s.speeds_every,
             temperature_ramp: s.temperature_ramp,
@@ -382,6 +385,7 @@ impl SetupForm {
             trajectory_every: self.trajectory_every,
             rdf_every: self.rdf_every,
             rdf_reach: self.rdf_reach,
+            diffusion_window: self.diffusion_window,
             dynamics_every: self.dynamics_every,
             speeds_every: self.speeds_every,
             temperature_ramp: self.temperature_ramp,
