@@ -28,6 +28,11 @@ fn small(steps: u64, sample_every: u64) -> Setup {
         sample_every,
         trajectory_every: None,
         rdf_every: None,
+        rdf_reach: Default::default(),
+        diffusion_window: None,
+        dynamics_every: None,
+        speeds_every: None,
+        temperature_ramp: None,
         precision_targets: Vec::new(),
     }
 }

@@ -1,14 +1,14 @@
 //! Headless runs: a session stepped to the end, with the energy log, summary, checkpoint and
 //! trajectory written to an output folder.
 
+use super::analyses::{Analyses, Cadence};
 use super::session::Session;
 use super::watchdog::Alarm;
-use crate::analysis::RadialDistribution;
 use crate::analysis::StartChoice;
 use crate::analysis::eos_reference::{self, RunState};
 use crate::analysis::precision;
+use crate::io::analysis_files::{analysis_files, species_labels};
 use crate::io::energy_log::EnergyLog;
-use crate::io::rdf_csv::rdf_csv;
 use crate::io::run_folder::{self, FolderError, StagedRun};
 use crate::io::summary::{RunFacts, StopReason, Summary};
 use crate::io::trajectory;
@@ -49,12 +49,15 @@ pub enum RunError {
 }
 
 /// Files a run writes into its output folder.
-pub const OUTPUT_FILES: [&str; 5] = [
+pub const OUTPUT_FILES: [&str; 8] = [
     "energy.csv",
     "summary.json",
     "final.checkpoint",
     "trajectory.xyz",
     "rdf.csv",
+    "msd.csv",
+    "vacf.csv",
+    "speeds.csv",
 ];
 
 /// Checks that `out` can take a run without destroying an earlier one or anything else (see
@@ -103,9 +106,16 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
         None => None,
     };
     let mut last_drift = session.observe().drift;
-    let mut rdf = setup
-        .rdf_every
-        .map(|_| RadialDistribution::new(session.simulation().spec().cutoff, RDF_BINS));
+    let mut analyses = Analyses::new(
+        session.simulation(),
+        Cadence {
+            rdf_every: setup.rdf_every,
+            rdf_half_box: setup.rdf_reach == crate::io::setup::RdfReach::HalfBox,
+            dynamics_every: setup.dynamics_every,
+            speeds_every: setup.speeds_every,
+            from_step: setup.equilibration_steps,
+        },
+    );
     if fresh {
         // The session holds this first sample already.
         let o = session.observe();
@@ -155,12 +165,7 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
             trajectory::write_frame(t, sim.system(), &units, step, sim.time())
                 .map_err(|e| io_err("trajectory.xyz", e))?;
         }
-        if let (Some(g), Some(k)) = (rdf.as_mut(), setup.rdf_every)
-            && step.is_multiple_of(k)
-            && step >= setup.equilibration_steps
-        {
-            g.add(session.simulation());
-        }
+        analyses.after_step(session.simulation());
         if step.is_multiple_of(64) {
             bar.set_position(step - start_step);
         }
@@ -185,11 +190,19 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
     for w in &warnings {
         eprintln!("warning: {w}");
     }
-    if let Some(g) = &rdf {
+    let labels = species_labels(&session.simulation().system().kinds);
+    let files = analysis_files(
+        analyses.rdf.as_ref(),
+        analyses.motion.as_ref(),
+        analyses.speeds.as_ref(),
+        &units,
+        &labels,
+    );
+    for (name, text) in files {
         staged
-            .create("rdf.csv")
-            .and_then(|mut f| f.write_all(rdf_csv(g, &units).as_bytes()))
-            .map_err(|e| io_err("rdf.csv", e))?;
+            .create(name)
+            .and_then(|mut f| f.write_all(text.as_bytes()))
+            .map_err(|e| io_err(name, e))?;
     }
     session
         .checkpoint()
@@ -230,6 +243,18 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
             equation_of_state,
         },
     );
+    let mut summary = summary;
+    let window = setup
+        .diffusion_window_tau()
+        .ok()
+        .flatten()
+        .map(|[from, to]| crate::analysis::FitWindow { from, to });
+    summary.add_motion(
+        analyses.diffusion(window),
+        analyses.speeds.as_ref(),
+        &labels,
+        units,
+    );
     staged
         .create("summary.json")
         .and_then(|mut f| f.write_all(summary.to_json().as_bytes()))
@@ -239,7 +264,7 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
 }
 
 /// Bins of g(r) between 0 and the cutoff.
-pub const RDF_BINS: usize = 200;
+pub use super::analyses::RDF_BINS;
 
 /// Mass density of the session's box in g/cm³.
 pub fn mass_density(session: &Session) -> f64 {

@@ -2,10 +2,12 @@
 //! serves both the window and the command line. [`protocol`] is the contract between the
 //! window and the engine thread.
 
+pub mod analyses;
 pub mod bench;
 pub mod bench_statistics;
 pub mod frame;
 pub mod headless;
+pub mod live_analyses;
 pub mod protocol;
 pub mod rewind;
 pub mod runner;
@@ -15,7 +17,7 @@ pub mod tuning;
 pub mod watchdog;
 
 pub use frame::{Frame, FrameMailbox};
-pub use protocol::{Command, CommandKind, Event, Status};
+pub use protocol::{AnalysesReport, AnalysisFile, Command, CommandKind, Event, Status};
 pub use runner::{EngineHandle, Refusal};
 pub use session::Session;
 pub use tuning::{TuneError, TuneInput, TuneRequest, TuningReport};

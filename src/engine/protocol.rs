@@ -5,6 +5,7 @@
 
 use super::tuning::{TuneRequest, TuningReport};
 use super::watchdog::Alarm;
+use crate::analysis::Estimate;
 use crate::io::setup::{Duration, Ensemble, Length, Setup, Temperature};
 use crate::physics::{Observables, PotentialMode};
 use std::path::PathBuf;
@@ -50,8 +51,98 @@ pub enum Command {
     /// Stop the running tuning scan (within 1/200 of a trial); answered with
     /// [`Event::TuneCancelled`], or refused if no scan runs.
     CancelTune,
+    /// Start (true) or stop (false) the structure and motion analyses of the running
+    /// simulation; while on, the engine sends [`Event::Analyses`] about twice a second.
+    WatchAnalyses(bool),
+    /// Forget what the analyses gathered and start them again at the present step.
+    ResetAnalyses,
+    /// Lag window of the diffusion fits, τ (`[from, to]`); None for the default.
+    SetFitWindow(Option<[f64; 2]>),
+    /// Write one analysis as CSV (the same text as the headless run's file).
+    SaveAnalysis { file: AnalysisFile, path: PathBuf },
     /// End the engine thread.
     Shutdown,
+}
+
+/// One of the analysis files.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum AnalysisFile {
+    Rdf,
+    Msd,
+    Vacf,
+    Speeds,
+}
+
+impl AnalysisFile {
+    /// The file's name in a headless run's folder (and the default name of an export).
+    pub fn file_name(self) -> &'static str {
+        match self {
+            AnalysisFile::Rdf => "rdf.csv",
+            AnalysisFile::Msd => "msd.csv",
+            AnalysisFile::Vacf => "vacf.csv",
+            AnalysisFile::Speeds => "speeds.csv",
+        }
+    }
+}
+
+/// A labelled curve of (x, y) points in reduced units.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct Curve {
+    pub label: String,
+    pub points: Vec<[f64; 2]>,
+}
+
+/// One species' speed histogram against Maxwell–Boltzmann, reduced units (σ/τ, τ/σ).
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct SpeedCurves {
+    pub label: String,
+    pub measured: Vec<[f64; 2]>,
+    pub maxwell_boltzmann: Vec<[f64; 2]>,
+    /// Kinetic temperature of the Maxwell–Boltzmann curve, ε/k_B.
+    pub temperature: f64,
+    /// Kolmogorov–Smirnov distance between the two distributions, and its 1 % critical value
+    /// for one configuration (see `analysis::speeds`).
+    pub ks_distance: f64,
+    pub ks_critical: f64,
+}
+
+/// Both self-diffusion estimates, σ²/τ, and the fit window, τ.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct DiffusionFigures {
+    pub einstein: Estimate,
+    pub green_kubo: Estimate,
+    pub window: [f64; 2],
+    /// Blocks of time origins behind the errors.
+    pub blocks: usize,
+    /// Whether the two agree within twice their combined error.
+    pub agree: bool,
+}
+
+/// What the structure and motion analyses show now, in reduced units.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct AnalysesReport {
+    /// Step of the simulation when the report was made.
+    pub step: u64,
+    /// First step the analyses took in.
+    pub from_step: u64,
+    /// Configurations in g(r), samples in the MSD and VACF, configurations in the speeds.
+    pub rdf_frames: u64,
+    pub dynamics_samples: u64,
+    pub speed_frames: u64,
+    /// Steps between configurations of each analysis.
+    pub rdf_every: u64,
+    pub dynamics_every: u64,
+    pub speeds_every: u64,
+    /// g(r): the total, then every species pair of a mixture.
+    pub rdf: Vec<Curve>,
+    /// Running coordination numbers, in the order of `rdf`.
+    pub coordination: Vec<Curve>,
+    /// MSD (σ² against τ): all atoms followed, then each species of a mixture.
+    pub msd: Vec<Curve>,
+    /// Normalised VACF against τ, in the order of `msd`.
+    pub vacf: Vec<Curve>,
+    pub diffusion: Option<DiffusionFigures>,
+    pub speeds: Vec<SpeedCurves>,
 }
 
 /// Engine state reported a few times a second.
@@ -94,6 +185,10 @@ pub enum Event {
     Tuned(TuningReport),
     /// The running tuning scan was stopped on request; no results will come.
     TuneCancelled,
+    /// What the structure and motion analyses show now (while they are on).
+    Analyses(Box<AnalysesReport>),
+    /// An analysis was written as CSV.
+    AnalysisSaved(PathBuf),
     /// The run reached the setup's `steps` and paused there; a further [`Command::Run`] goes on
     /// past them without stopping again.
     ReachedSteps {
@@ -134,6 +229,14 @@ pub enum CommandKind {
     Tune,
     /// [`Command::CancelTune`].
     CancelTune,
+    /// [`Command::WatchAnalyses`].
+    WatchAnalyses,
+    /// [`Command::ResetAnalyses`].
+    ResetAnalyses,
+    /// [`Command::SetFitWindow`].
+    SetFitWindow,
+    /// [`Command::SaveAnalysis`].
+    SaveAnalysis,
     /// [`Command::Shutdown`].
     Shutdown,
 }
@@ -156,6 +259,10 @@ impl CommandKind {
             CommandKind::Rewind => "Rewind",
             CommandKind::Tune => "Tune",
             CommandKind::CancelTune => "CancelTune",
+            CommandKind::WatchAnalyses => "WatchAnalyses",
+            CommandKind::ResetAnalyses => "ResetAnalyses",
+            CommandKind::SetFitWindow => "SetFitWindow",
+            CommandKind::SaveAnalysis => "SaveAnalysis",
             CommandKind::Shutdown => "Shutdown",
         }
     }
@@ -192,6 +299,10 @@ impl Command {
             Command::Rewind => CommandKind::Rewind,
             Command::Tune(_) => CommandKind::Tune,
             Command::CancelTune => CommandKind::CancelTune,
+            Command::WatchAnalyses(_) => CommandKind::WatchAnalyses,
+            Command::ResetAnalyses => CommandKind::ResetAnalyses,
+            Command::SetFitWindow(_) => CommandKind::SetFitWindow,
+            Command::SaveAnalysis { .. } => CommandKind::SaveAnalysis,
             Command::Shutdown => CommandKind::Shutdown,
         }
     }

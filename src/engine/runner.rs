@@ -5,6 +5,7 @@
 //! never waits for drawing: it fills a frame only when the last one was taken.
 
 use super::frame::{Frame, FrameMailbox};
+use super::live_analyses::LiveAnalyses;
 use super::protocol::{Command, CommandKind, Event, Status};
 use super::rewind::RewindBuffer;
 use super::session::Session;
@@ -25,6 +26,8 @@ const SNAPSHOT_EVERY: u64 = 500;
 const BATCH: Duration = Duration::from_millis(15);
 /// How often a status event goes out.
 const STATUS_EVERY: Duration = Duration::from_millis(250);
+/// How often the structure and motion analyses are reported while a run goes.
+const ANALYSES_EVERY: Duration = Duration::from_millis(500);
 
 /// Why the engine refused a command (sent on as [`Event::Rejected`] with its message).
 #[derive(Debug, thiserror::Error)]
@@ -60,6 +63,18 @@ pub enum Refusal {
     /// The scan's thread ended without an answer.
     #[error("the tuning scan stopped unexpectedly")]
     TuneLost,
+    /// An analysis command while the analyses are off.
+    #[error("the structure and motion analyses are off; open their panel first")]
+    AnalysesOff,
+    /// An analysis has nothing to write yet.
+    #[error("{0} has no data yet; let the run go on a little")]
+    AnalysisEmpty(&'static str),
+    /// A fit window that is not an interval of positive lags.
+    #[error("fit window: [{from}, {to}] τ is out of range; allowed: 0 ≤ from < to")]
+    FitWindow { from: f64, to: f64 },
+    /// An analysis file could not be written.
+    #[error("could not write {path}: {error}")]
+    AnalysisWrite { path: String, error: std::io::Error },
 }
 
 /// The window's side of the engine: send commands, read events, take frames.
@@ -144,6 +159,9 @@ struct Engine {
     tune: Option<TuneJob>,
     /// Whether the run still pauses when it reaches the setup's `steps` (once per start).
     stop_at_steps: bool,
+    /// The structure and motion analyses, while the window watches them.
+    analyses: Option<LiveAnalyses>,
+    last_analyses: Instant,
 }
 
 /// A tuning scan on its own thread, working on copies of the state.
@@ -205,6 +223,8 @@ impl Engine {
             steps_per_second: 0.0,
             tune: None,
             stop_at_steps: true,
+            analyses: None,
+            last_analyses: Instant::now(),
         }
     }
 
@@ -258,6 +278,24 @@ impl Engine {
         });
         self.emit(Event::Sample(session.observe()));
         self.publish_frame(session, true);
+        self.restart_analyses(session);
+    }
+
+    /// Builds the analyses afresh for `session` (a new run, or a change of timestep or
+    /// cutoff), if they are on, keeping the fit window, and reports them.
+    fn restart_analyses(&mut self, session: &Session) {
+        if let Some(a) = &self.analyses {
+            self.analyses = Some(LiveAnalyses::new(session, a.window()));
+            self.send_analyses(session);
+        }
+    }
+
+    fn send_analyses(&mut self, session: &Session) {
+        if let Some(a) = &self.analyses {
+            let report = a.report(session.simulation().step_count());
+            self.emit(Event::Analyses(Box::new(report)));
+        }
+        self.last_analyses = Instant::now();
     }
 
     fn run(mut self, setup: Setup) {
@@ -310,6 +348,9 @@ impl Engine {
             if self.last_status.elapsed() >= STATUS_EVERY {
                 self.send_status(&session);
             }
+            if self.running && self.analyses.is_some() && self.last_analyses.elapsed() >= ANALYSES_EVERY {
+                self.send_analyses(&session);
+            }
         }
     }
 
@@ -325,6 +366,9 @@ impl Engine {
             self.emit(Event::Alarm(a));
             self.send_status(session);
             return;
+        }
+        if let Some(a) = self.analyses.as_mut() {
+            a.after_step(session);
         }
         let step = session.simulation().step_count();
         if self.rewind.due(step) {
@@ -431,7 +475,10 @@ impl Engine {
                     .and_then(|c| Session::from_checkpoint(c).map_err(Refusal::from));
                 self.replace_session(session, new)
             }
-            Command::SetTimestep(dt) => session.set_timestep(dt).map_err(Refusal::from),
+            Command::SetTimestep(dt) => session.set_timestep(dt).map_err(Refusal::from).map(|()| {
+                // The sampling interval of the self motion changed: start the analyses again.
+                self.restart_analyses(session);
+            }),
             Command::SetInteraction {
                 cutoff,
                 skin,
@@ -439,7 +486,48 @@ impl Engine {
                 tail_correction,
             } => session
                 .set_interaction(cutoff, skin, potential, tail_correction)
-                .map_err(Refusal::from),
+                .map_err(Refusal::from)
+                .map(|()| self.restart_analyses(session)),
+            Command::WatchAnalyses(on) => {
+                if on && self.analyses.is_none() {
+                    self.analyses = Some(LiveAnalyses::new(session, None));
+                    self.send_analyses(session);
+                } else if !on {
+                    self.analyses = None;
+                }
+                Ok(())
+            }
+            Command::ResetAnalyses => match self.analyses.as_mut() {
+                Some(a) => {
+                    a.reset(session.simulation().step_count());
+                    self.send_analyses(session);
+                    Ok(())
+                }
+                None => Err(Refusal::AnalysesOff),
+            },
+            Command::SetFitWindow(w) => match (self.analyses.as_mut(), w) {
+                (None, _) => Err(Refusal::AnalysesOff),
+                (Some(_), Some([from, to])) if !(from >= 0.0 && to > from && to.is_finite()) => {
+                    Err(Refusal::FitWindow { from, to })
+                }
+                (Some(a), w) => {
+                    a.set_window(w.map(|[from, to]| crate::analysis::FitWindow { from, to }));
+                    self.send_analyses(session);
+                    Ok(())
+                }
+            },
+            Command::SaveAnalysis { file, path } => match &self.analyses {
+                None => Err(Refusal::AnalysesOff),
+                Some(a) => match a.csv(file, session) {
+                    None => Err(Refusal::AnalysisEmpty(file.file_name())),
+                    Some(text) => std::fs::write(&path, text)
+                        .map_err(|error| Refusal::AnalysisWrite {
+                            path: path.display().to_string(),
+                            error,
+                        })
+                        .map(|()| self.emit(Event::AnalysisSaved(path))),
+                },
+            },
             Command::SetThermostat {
                 ensemble,
                 temperature,
@@ -493,6 +581,11 @@ impl Engine {
         });
         self.emit(Event::Sample(session.observe()));
         self.publish_frame(session, true);
+        if let Some(a) = self.analyses.as_mut() {
+            // What was gathered after the snapshot no longer happened.
+            a.reset(session.simulation().step_count());
+        }
+        self.send_analyses(session);
         Ok(())
     }
 

@@ -7,7 +7,7 @@ use crate::analysis::precision::{self, PrecisionTarget, TargetProgress};
 use crate::analysis::{Evidence, SampleStore, StartChoice, analyse};
 use crate::io::checkpoint::Checkpoint;
 use crate::io::setup::{Duration, Ensemble, Length, Setup, SetupError, Temperature};
-use crate::physics::{Observables, PotentialMode, Simulation, UnitSystem};
+use crate::physics::{Observables, PotentialMode, Simulation, Thermostat, UnitSystem};
 
 /// One simulation and what it was set up from.
 pub struct Session {
@@ -147,8 +147,10 @@ impl Session {
         self.sim.observe()
     }
 
-    /// Takes one step; samples and checks at multiples of `sample_every`.
+    /// Takes one step; samples and checks at multiples of `sample_every`. Under a
+    /// `temperature_ramp` the bath target is first set for the step about to be taken.
     pub fn step(&mut self) -> StepOutcome {
+        self.follow_ramp();
         if let Err(b) = self.sim.step() {
             return StepOutcome {
                 sample: None,
@@ -174,6 +176,28 @@ impl Session {
             }
         }
         out
+    }
+
+    /// Sets the thermostat's target to the ramp's value at the present step (while the ramp
+    /// lasts; afterwards the target stays at its end).
+    fn follow_ramp(&mut self) {
+        let Some(r) = self.setup.temperature_ramp else {
+            return;
+        };
+        let step = self.sim.step_count();
+        if step > r.steps {
+            return;
+        }
+        let Some(target) = self.setup.ramp_target(step) else {
+            return;
+        };
+        let thermostat = match self.sim.spec().thermostat {
+            Thermostat::StochasticRescale { tau, .. } => Thermostat::StochasticRescale { target, tau },
+            Thermostat::Langevin { gamma, .. } => Thermostat::Langevin { target, gamma },
+            Thermostat::None => return,
+        };
+        // The target is in range (the setup validated both ends), so this cannot fail.
+        let _ = self.sim.set_thermostat(thermostat);
     }
 
     /// Changes the timestep; the setup records the new value in the unit given.
@@ -211,6 +235,10 @@ impl Session {
         let mut setup = self.setup.clone();
         setup.ensemble = ensemble;
         setup.temperature = temperature;
+        if ensemble == Ensemble::Nve {
+            // Constant energy has no bath target to move.
+            setup.temperature_ramp = None;
+        }
         let spec = setup.resolve()?;
         self.sim.set_thermostat(spec.thermostat)?;
         self.setup = setup;

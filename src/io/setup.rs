@@ -106,6 +106,29 @@ pub enum ThermostatChoice {
     Langevin { friction: Rate },
 }
 
+/// A bath target that changes linearly with the step: from the setup's `temperature` at step 0
+/// to `to` at step `steps`, and `to` after that.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct TemperatureRamp {
+    pub to: Temperature,
+    pub steps: u64,
+}
+
+/// How far g(r) reaches.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
+pub enum RdfReach {
+    /// Out to the cutoff, from the neighbour list (cheap).
+    #[default]
+    Cutoff,
+    /// Out to half the box edge, over every pair of atoms (its cost grows as N²).
+    HalfBox,
+}
+
+/// Most atoms for `rdf_reach: HalfBox`: every pair is visited, 2 × 10⁸ pairs a configuration
+/// at this size.
+pub const MAX_ATOMS_HALF_BOX_RDF: u64 = 20_000;
+
 /// Ensemble of the run.
 #[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
 pub enum Ensemble {
@@ -147,13 +170,38 @@ pub struct Setup {
     #[serde(default)]
     pub trajectory_every: Option<u64>,
     /// Add the configuration to the radial distribution function (rdf.csv) every this many
-    /// steps, from `equilibration_steps` on; g(r) reaches out to the cutoff.
+    /// steps, from `equilibration_steps` on; g(r) reaches out to the cutoff or, with
+    /// `rdf_reach: HalfBox`, to half the box edge.
     #[serde(default)]
     pub rdf_every: Option<u64>,
+    /// How far g(r) reaches: the cutoff (default) or half the box edge.
+    #[serde(default, skip_serializing_if = "is_cutoff_reach")]
+    pub rdf_reach: RdfReach,
+    /// Add positions and velocities to the mean squared displacement and velocity
+    /// autocorrelation (msd.csv, vacf.csv, both self-diffusion estimates) every this many
+    /// steps, from `equilibration_steps` on.
+    #[serde(default)]
+    pub dynamics_every: Option<u64>,
+    /// Add the atoms' speeds to the speed histograms (speeds.csv) every this many steps, from
+    /// `equilibration_steps` on.
+    #[serde(default)]
+    pub speeds_every: Option<u64>,
+    /// Lag window `(from, to)` of both self-diffusion estimates; None: from 0.1 to 0.4 of the
+    /// span sampled.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub diffusion_window: Option<(Duration, Duration)>,
+    /// Under a thermostat: move the bath target linearly from `temperature` to `to` over the
+    /// first `steps` steps (heating a crystal through melting, cooling a liquid).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub temperature_ramp: Option<TemperatureRamp>,
     /// Stop once these standard errors are reached after the detected equilibration start
     /// (`steps` stays the upper limit); see [`crate::io::precision_setting`].
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub precision_targets: Vec<PrecisionSetting>,
+}
+
+fn is_cutoff_reach(r: &RdfReach) -> bool {
+    *r == RdfReach::Cutoff
 }
 
 fn default_skin() -> Length {
@@ -182,6 +230,14 @@ pub const CUTOFF_RANGE_SIGMA: (f64, f64) = (1.0, 10.0);
 pub const SKIN_RANGE_SIGMA: (f64, f64) = (0.0, 2.0);
 /// Largest number of species in one mixture.
 pub const MAX_SPECIES: usize = 6;
+/// Well depth ε/k_B a custom species may have, K: (smallest, largest). Helium's 10.22 K and
+/// xenon's 221 K lie well inside; the bounds keep reduced temperatures and timesteps of a
+/// mixture within what the other ranges can express.
+pub const CUSTOM_EPSILON_RANGE_KELVIN: (f64, f64) = (1.0, 2000.0);
+/// Size σ a custom species may have, Å: (smallest, largest).
+pub const CUSTOM_SIGMA_RANGE_ANGSTROM: (f64, f64) = (1.0, 10.0);
+/// Mass a custom species may have, Da: (lightest, heaviest).
+pub const CUSTOM_MASS_RANGE_DALTON: (f64, f64) = (1.0, 1000.0);
 /// Bytes per atom the engine needs besides the neighbour list's pairs: positions, velocities,
 /// forces and types (73), the list's per-atom arrays (at most 48 at any density, see
 /// `physics::neighbours`), a checkpoint being written (a copy of the state and its encoding,
@@ -545,6 +601,31 @@ impl Setup {
                 return Err(SetupError::field(name, "Some(0)", "None or Some(n) with n ≥ 1"));
             }
         }
+        if self.rdf_reach == RdfReach::HalfBox && self.atoms > MAX_ATOMS_HALF_BOX_RDF {
+            return Err(SetupError::field(
+                "rdf_reach",
+                format!("HalfBox with {} atoms", self.atoms),
+                format!("HalfBox up to {MAX_ATOMS_HALF_BOX_RDF} atoms (every pair is visited), or Cutoff"),
+            ));
+        }
+        for (name, every) in [
+            ("dynamics_every", self.dynamics_every),
+            ("speeds_every", self.speeds_every),
+        ] {
+            if let Some(n) = every
+                && (n == 0 || n > self.steps)
+            {
+                return Err(SetupError::field(
+                    name,
+                    format!("Some({n})"),
+                    format!("None or Some(n) with 1 ≤ n ≤ steps ({})", self.steps),
+                ));
+            }
+        }
+        if let Some(r) = self.temperature_ramp {
+            self.ramp_end(r)?;
+        }
+        self.diffusion_window_tau()?;
         self.precision_targets_reduced()?;
         let shares: Vec<f64> = self.species.iter().map(|s| s.share).collect();
         let spec = SimulationSpec {
@@ -573,6 +654,71 @@ impl Setup {
         }
         spec.check()?;
         Ok(spec)
+    }
+
+    /// The diffusion fit window in τ, validated: both ends convert, 0 ≤ from < to.
+    pub fn diffusion_window_tau(&self) -> Result<Option<[f64; 2]>, SetupError> {
+        let Some((a, b)) = self.diffusion_window else {
+            return Ok(None);
+        };
+        let from = self.reduced_duration("diffusion_window", a)?;
+        let to = self.reduced_duration("diffusion_window", b)?;
+        if !(from >= 0.0 && to > from && to.is_finite()) {
+            return Err(SetupError::field(
+                "diffusion_window",
+                format!(
+                    "({a:?}, {b:?}) = {} τ to {} τ",
+                    format_limit(from),
+                    format_limit(to)
+                ),
+                "(from, to) with 0 ≤ from < to",
+            ));
+        }
+        Ok(Some([from, to]))
+    }
+
+    /// The reduced end temperature of a ramp, validated: a thermostat must run, the end
+    /// temperature lies in the range the start temperature may have, and the ramp lasts
+    /// 1 to `steps` steps.
+    fn ramp_end(&self, r: TemperatureRamp) -> Result<f64, SetupError> {
+        if self.ensemble == Ensemble::Nve {
+            return Err(SetupError::field(
+                "temperature_ramp",
+                format!("{r:?} with ensemble Nve"),
+                "None under Nve; a ramp moves the target of a thermostat (Nvt)",
+            ));
+        }
+        let to = self.reduced_temperature("temperature_ramp.to", r.to)?;
+        in_range(
+            "temperature_ramp.to",
+            format!("{:?} = {} reduced", r.to, format_limit(to)),
+            to,
+            TEMPERATURE_RANGE_REDUCED.0,
+            TEMPERATURE_RANGE_REDUCED.1,
+            &format!(
+                "reduced temperature kT/ε from {} to {}",
+                limit(TEMPERATURE_RANGE_REDUCED.0),
+                limit(TEMPERATURE_RANGE_REDUCED.1)
+            ),
+        )?;
+        if r.steps == 0 || r.steps > self.steps {
+            return Err(SetupError::field(
+                "temperature_ramp.steps",
+                r.steps,
+                format!("1 to steps ({})", self.steps),
+            ));
+        }
+        Ok(to)
+    }
+
+    /// The bath target (reduced) at `step` under the setup's ramp, or None without a valid
+    /// ramp: linear from `temperature` at step 0 to the ramp's end at its last step.
+    pub fn ramp_target(&self, step: u64) -> Option<f64> {
+        let r = self.temperature_ramp?;
+        let to = self.ramp_end(r).ok()?;
+        let from = self.reduced_temperature("temperature", self.temperature).ok()?;
+        let f = (step as f64 / r.steps as f64).min(1.0);
+        Some(from + (to - from) * f)
     }
 
     /// [`Setup::resolve`], then [`Setup::check_memory_available`]: for every place that starts
@@ -617,6 +763,76 @@ impl Setup {
                     format!("{:?} (listed twice)", s.kind),
                     "each species at most once",
                 ));
+            }
+            if let Species::Custom {
+                name,
+                epsilon,
+                sigma,
+                mass,
+            } = s.kind
+            {
+                let field = |f: &str| format!("species[{i}].kind.{f}");
+                let bytes = name.given_len();
+                if !name.fits()
+                    || name.as_str().trim().is_empty()
+                    || name.as_str().chars().any(char::is_control)
+                {
+                    return Err(SetupError::field(
+                        &field("name"),
+                        format!("{name:?} ({bytes} bytes)"),
+                        format!(
+                            "1 to {} bytes of text without control characters",
+                            crate::physics::species::SpeciesName::CAPACITY
+                        ),
+                    ));
+                }
+                let (lo, hi) = CUSTOM_EPSILON_RANGE_KELVIN;
+                let kj = |k: f64| format_limit(k * crate::physics::units::GAS_CONSTANT * 1e-3);
+                in_range(
+                    &field("epsilon"),
+                    format!("{epsilon:?} = {} K", format_limit(epsilon.kelvin())),
+                    epsilon.kelvin(),
+                    lo,
+                    hi,
+                    &format!(
+                        "ε/k_B from {} K to {} K ({} to {} kJ/mol)",
+                        limit(lo),
+                        limit(hi),
+                        kj(lo),
+                        kj(hi)
+                    ),
+                )?;
+                let (lo, hi) = CUSTOM_SIGMA_RANGE_ANGSTROM;
+                in_range(
+                    &field("sigma"),
+                    format!("{sigma:?} = {} Å", format_limit(sigma.angstrom())),
+                    sigma.angstrom(),
+                    lo,
+                    hi,
+                    &format!(
+                        "{} Å to {} Å ({} nm to {} nm)",
+                        limit(lo),
+                        limit(hi),
+                        limit(lo / 10.0),
+                        limit(hi / 10.0)
+                    ),
+                )?;
+                let (lo, hi) = CUSTOM_MASS_RANGE_DALTON;
+                in_range(
+                    &field("mass"),
+                    format!("{mass:?}"),
+                    mass.grams_per_mole(),
+                    lo,
+                    hi,
+                    &format!("{} Da to {} Da", limit(lo), limit(hi)),
+                )?;
+                if self.species[..i].iter().any(|o| o.kind.label() == name.as_str()) {
+                    return Err(SetupError::field(
+                        &field("name"),
+                        format!("{name:?} (named twice)"),
+                        "a name no other species of the setup has",
+                    ));
+                }
             }
             if n > 1 && s.kind == Species::ReducedLJ {
                 return Err(SetupError::field(

@@ -1,7 +1,9 @@
 //! `summary.json`: averages of a finished run with their standard errors.
 
 use crate::analysis::eos_reference::{EosComparison, TemperatureSource};
-use crate::analysis::{Estimate, Evidence, Quantity, SampleStore, TargetProgress, block_average};
+use crate::analysis::{
+    Diffusion, Estimate, Evidence, Quantity, SampleStore, SpeedHistogram, TargetProgress, block_average,
+};
 use crate::physics::UnitSystem;
 use crate::physics::lj_eos::Region;
 use serde::Serialize;
@@ -20,7 +22,40 @@ pub struct SiSummary {
     pub temperature: Estimate,
     /// g/cm³.
     pub density: f64,
+    /// cm²/s, fit window in ps; present when the run sampled its dynamics.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub self_diffusion: Option<SelfDiffusion>,
     pub units: SiUnits,
+}
+
+/// The self-diffusion coefficient of all atoms followed, two ways (see
+/// `analysis::diffusion`): reduced units σ²/τ with the window in τ, or under `si` cm²/s with
+/// the window in ps.
+#[derive(Clone, Copy, Debug, Serialize)]
+pub struct SelfDiffusion {
+    pub einstein: Estimate,
+    pub green_kubo: Estimate,
+    /// Lags of the Einstein fit and of the Green–Kubo plateau: [from, to].
+    pub fit_window: [f64; 2],
+    /// Blocks of time origins behind the standard errors.
+    pub blocks: usize,
+    /// False when the two estimates differ by more than twice their combined error: too short
+    /// a run, too coarse `dynamics_every`, or a thermostat disturbing the dynamics (Langevin
+    /// friction and fast stochastic rescaling change D; measure it in NVE).
+    pub estimates_agree: bool,
+}
+
+/// The speed histogram of one species against Maxwell–Boltzmann.
+#[derive(Clone, Debug, Serialize)]
+pub struct SpeedsSummary {
+    pub species: String,
+    /// Mean kinetic temperature of the configurations, reduced.
+    pub temperature: f64,
+    /// Largest distance between measured and Maxwell–Boltzmann cumulative distributions.
+    pub ks_distance: f64,
+    /// Its 1 % critical value for one configuration's atoms, were they independent.
+    pub ks_critical_one_frame: f64,
+    pub speeds_counted: u64,
 }
 
 /// Unit labels of [`SiSummary`].
@@ -30,6 +65,7 @@ pub struct SiUnits {
     pub pressure: &'static str,
     pub temperature: &'static str,
     pub density: &'static str,
+    pub self_diffusion: &'static str,
 }
 
 /// Equilibration detected on the run's samples.
@@ -152,6 +188,12 @@ pub struct Summary {
     #[serde(skip_serializing_if = "Option::is_none")]
     pub equation_of_state: Option<EquationOfStateSummary>,
     pub si: Option<SiSummary>,
+    /// σ²/τ; present when the run sampled its dynamics (`dynamics_every`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub self_diffusion: Option<SelfDiffusion>,
+    /// Present when the run took speed histograms (`speeds_every`).
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub speeds: Vec<SpeedsSummary>,
     pub caution: &'static str,
 }
 
@@ -206,11 +248,13 @@ impl Summary {
             pressure: scale(p, units.pressure_bar()),
             temperature: scale(t, units.temperature_kelvin()),
             density: facts.mass_density_g_cm3.unwrap_or(f64::NAN),
+            self_diffusion: None,
             units: SiUnits {
                 potential_energy_per_atom: "kJ/mol",
                 pressure: "bar",
                 temperature: "K",
                 density: "g/cm^3",
+                self_diffusion: "cm^2/s",
             },
         });
         let wall = facts.wall_seconds.max(1e-9);
@@ -277,7 +321,53 @@ impl Summary {
                 run_full_potential_residual_energy: c.run_residual_energy,
             }),
             si,
+            self_diffusion: None,
+            speeds: Vec::new(),
             caution: MODEL_CAUTION,
+        }
+    }
+
+    /// Adds the self-diffusion estimates and the speed fits (species named by `labels`).
+    pub fn add_motion(
+        &mut self,
+        diffusion: Option<Diffusion>,
+        speeds: Option<&SpeedHistogram>,
+        labels: &[String],
+        units: UnitSystem,
+    ) {
+        let scaled = |d: &Diffusion, k: f64, t: f64| SelfDiffusion {
+            einstein: Estimate {
+                mean: d.einstein.mean * k,
+                stderr: d.einstein.stderr * k,
+            },
+            green_kubo: Estimate {
+                mean: d.green_kubo.mean * k,
+                stderr: d.green_kubo.stderr * k,
+            },
+            fit_window: [d.window.from * t, d.window.to * t],
+            blocks: d.blocks,
+            estimates_agree: d.estimates_agree(),
+        };
+        if let Some(d) = diffusion {
+            self.self_diffusion = Some(scaled(&d, 1.0, 1.0));
+            if let Some(si) = self.si.as_mut() {
+                si.self_diffusion = Some(scaled(&d, units.diffusion_cm2_s(), units.tau_ps()));
+            }
+        }
+        if let Some(h) = speeds {
+            self.speeds = labels
+                .iter()
+                .enumerate()
+                .filter_map(|(t, l)| {
+                    h.fit(t).map(|f| SpeedsSummary {
+                        species: l.clone(),
+                        temperature: f.temperature,
+                        ks_distance: f.ks_distance,
+                        ks_critical_one_frame: f.ks_critical_one_frame,
+                        speeds_counted: f.speeds,
+                    })
+                })
+                .collect();
         }
     }
 

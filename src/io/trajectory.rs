@@ -20,9 +20,15 @@ pub fn write_frame<W: Write>(
     let l = system.box_length * scale;
     writeln!(out, "{}", system.len())?;
     writeln!(out, "step={step} time={time:.6} tau box={l:.6} {unit}")?;
+    // A custom species' name may hold spaces: join its words so a line keeps four columns.
+    let symbols: Vec<String> = system
+        .kinds
+        .iter()
+        .map(|k| k.symbol().split_whitespace().collect::<Vec<_>>().join("_"))
+        .collect();
     for i in 0..system.len() {
         let p = system.wrapped(i);
-        let sym = system.kinds[system.types[i] as usize].symbol();
+        let sym = &symbols[system.types[i] as usize];
         writeln!(
             out,
             "{sym} {:.6} {:.6} {:.6}",

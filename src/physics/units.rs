@@ -92,6 +92,17 @@ impl UnitSystem {
         self.params.epsilon_kelvin * GAS_CONSTANT * 1e-3
     }
 
+    /// Speed unit σ/τ in m/s.
+    pub fn speed_m_s(&self) -> f64 {
+        self.sigma_angstrom() * ANGSTROM / self.tau_seconds()
+    }
+
+    /// Diffusion-coefficient unit σ²/τ in cm²/s.
+    pub fn diffusion_cm2_s(&self) -> f64 {
+        let s_cm = self.sigma_angstrom() * 1e-8;
+        s_cm * s_cm / self.tau_seconds()
+    }
+
     /// Number-density unit 1/σ³ in atoms per nm³.
     pub fn number_density_per_nm3(&self) -> f64 {
         let s_nm = self.sigma_angstrom() * 0.1;

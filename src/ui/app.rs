@@ -40,6 +40,9 @@ pub struct NoblescopeApp {
     pub(super) view: ParticleView,
     pub(super) form_open: bool,
     pub(super) tuning_open: bool,
+    /// Whether the "Structure and motion" panel is open, and whether the engine was told so.
+    pub(super) structure_open: bool,
+    pub(super) analyses_watched: bool,
     /// Start a scan of the default lists once the engine runs (`--view tuning`).
     pub(super) tune_at_start: bool,
     pub(super) help_open: bool,
@@ -64,6 +67,7 @@ impl NoblescopeApp {
             Some(StartView::Slab) => "slab",
             Some(StartView::Setup) => "setup",
             Some(StartView::Tuning) => "tuning",
+            Some(StartView::Structure) => "structure",
         };
         let mut run = RunView::new(&start.setup);
         if start.restored {
@@ -79,6 +83,8 @@ impl NoblescopeApp {
             view: ParticleView::new(start.settings),
             form_open: start.form_open,
             tuning_open: opts.view == Some(StartView::Tuning),
+            structure_open: opts.view == Some(StartView::Structure),
+            analyses_watched: false,
             tune_at_start: opts.view == Some(StartView::Tuning),
             help_open: false,
             sweep: opts.sweep.as_deref().and_then(|d| SweepView::load(d).ok()),
@@ -110,6 +116,16 @@ impl NoblescopeApp {
     /// Mutable tuning panel.
     pub fn tuning_mut(&mut self) -> &mut TuningPanel {
         &mut self.run.tuning
+    }
+
+    /// Opens or closes the "Structure and motion" panel (the engine's analyses follow).
+    pub fn set_structure_open(&mut self, open: bool) {
+        self.structure_open = open;
+    }
+
+    /// The "Structure and motion" panel's state.
+    pub fn structure(&self) -> &super::structure_panel::StructurePanel {
+        &self.run.structure
     }
 
     /// Opens or closes the tuning panel.
@@ -221,6 +237,10 @@ impl NoblescopeApp {
         }
         self.frames_drawn += 1;
         self.drain_events();
+        if self.engine.is_some() && self.structure_open != self.analyses_watched {
+            self.analyses_watched = self.structure_open;
+            self.send(Command::WatchAnalyses(self.structure_open));
+        }
         if self.run.status.status.running || self.watch.is_some() {
             ctx.request_repaint_after(RUNNING_FRAME_INTERVAL);
         }

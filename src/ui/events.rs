@@ -5,6 +5,7 @@
 use super::plots::Plots;
 use super::setup_form::SetupForm;
 use super::status::StatusLine;
+use super::structure_panel::StructurePanel;
 use super::tuning_panel::TuningPanel;
 use super::unit_field::format_number;
 use crate::engine::Event;
@@ -26,6 +27,8 @@ pub struct RunView {
     pub tuning: TuningPanel,
     /// Atoms of the running simulation (0 until it started).
     pub atoms: usize,
+    /// The structure and motion analyses as last reported.
+    pub structure: StructurePanel,
 }
 
 /// What an event means for the rest of the window beyond the state it changed.
@@ -69,6 +72,7 @@ impl RunView {
             status: StatusLine::default(),
             tuning: TuningPanel::for_setup(setup),
             atoms: 0,
+            structure: StructurePanel::default(),
         }
     }
 
@@ -92,6 +96,10 @@ pub fn reduce(view: &mut RunView, event: Event) -> Echo {
             } else {
                 Echo::Nothing
             };
+            // Under a bath ramp the target line follows the ramp's value at this step.
+            if view.running.temperature_ramp.is_some() && thermostat_target(&view.running).is_some() {
+                view.plots.set_target(view.running.ramp_target(s.step));
+            }
             view.status.status = s;
             return echo;
         }
@@ -100,6 +108,7 @@ pub fn reduce(view: &mut RunView, event: Event) -> Echo {
             view.tuning.setup_changed(&setup);
             view.atoms = atoms;
             view.plots.restart(setup.units(), thermostat_target(&setup));
+            view.structure.clear();
             view.status.alarm = None;
         }
         Event::SetupChanged(setup) => {
@@ -136,6 +145,8 @@ pub fn reduce(view: &mut RunView, event: Event) -> Echo {
             ));
         }
         Event::Saved(p) => view.status.info(format!("Checkpoint saved to {}", p.display())),
+        Event::Analyses(r) => view.structure.report = Some(r),
+        Event::AnalysisSaved(p) => view.status.info(format!("Analysis exported to {}", p.display())),
     }
     Echo::Nothing
 }

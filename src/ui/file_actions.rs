@@ -119,6 +119,8 @@ impl NoblescopeApp {
             Ask::ExportCsv => self.export_csv(&path),
             Ask::SavePicture => self.request_screenshot(ctx, path),
             Ask::OpenSweep => self.open_sweep(&path),
+            Ask::ExportAnalysis(file) => self.send(Command::SaveAnalysis { file, path }),
+            Ask::SavePlotPicture(rect) => self.pictures.request_region(ctx, path, rect),
         }
     }
 

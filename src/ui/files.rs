@@ -122,6 +122,15 @@ pub fn pick_csv_to_save() -> Option<PathBuf> {
         .save_file()
 }
 
+/// Asks where to export one analysis as CSV, offering its headless file name.
+pub fn pick_analysis_csv_to_save(name: &'static str) -> Option<PathBuf> {
+    rfd::FileDialog::new()
+        .set_title("Export an analysis")
+        .add_filter("CSV", &["csv"])
+        .set_file_name(name)
+        .save_file()
+}
+
 /// Asks where to save a picture of the window.
 pub fn pick_png_to_save() -> Option<PathBuf> {
     rfd::FileDialog::new()

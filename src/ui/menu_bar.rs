@@ -50,6 +50,10 @@ impl NoblescopeApp {
                 .on_hover_text(hint_of(&ctx, Action::ToggleSetupForm));
             ui.toggle_value(&mut self.tuning_open, "Tuning")
                 .on_hover_text("scan timesteps and cutoffs before a long run");
+            ui.toggle_value(&mut self.structure_open, "Structure and motion")
+                .on_hover_text(
+                    "g(r), mean squared displacement, velocity autocorrelation, speeds and D, live",
+                );
             if ui
                 .button("Help")
                 .on_hover_text(hint_of(&ctx, Action::ToggleHelp))

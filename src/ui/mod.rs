@@ -14,6 +14,7 @@
 //! - [`particle_view`], [`slab_view`], [`gl_spheres`], [`cull`]: the atoms in 3D or as a flat slab;
 //! - [`plots`], [`series`]: live plots on bounded, envelope-keeping series;
 //! - [`tuning_panel`]: timestep and cutoff scans before a long run;
+//! - [`structure_panel`]: the "Structure and motion" panel (g(r), MSD, VACF, speeds, D);
 //! - [`status`], [`help`], [`palette`]: status line and messages, the help overlay and colours;
 //! - [`files`]: dialogs and writers; [`watch`]: scripted watching for reports and pictures,
 //!   driven each frame by [`scripted`];
@@ -42,6 +43,7 @@ pub mod slab_view;
 pub mod start;
 pub mod status;
 pub mod sweep_view;
+pub mod structure_panel;
 pub mod tuning_panel;
 pub mod unit_field;
 pub mod watch;

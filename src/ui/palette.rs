@@ -14,6 +14,19 @@ pub fn species_colour(s: Species) -> Color32 {
         Species::Krypton => Color32::from_rgb(0x8F, 0xC4, 0x8F), // moss
         Species::Xenon => Color32::from_rgb(0xB4, 0x8C, 0xD8),  // heather
         Species::ReducedLJ => Color32::from_rgb(0xB8, 0xBE, 0xC8), // slate
+        // Custom species: one of three more hues, picked by the name, so two custom species
+        // of a mixture usually differ (the legend names them either way).
+        Species::Custom { name, .. } => {
+            let h = name
+                .as_str()
+                .bytes()
+                .fold(0u32, |h, b| h.wrapping_mul(31).wrapping_add(b as u32));
+            [
+                Color32::from_rgb(0xC9, 0x7B, 0x4A), // copper
+                Color32::from_rgb(0x4F, 0xB3, 0xB0), // teal
+                Color32::from_rgb(0xD9, 0x8F, 0xB0), // rose
+            ][(h % 3) as usize]
+        }
     }
 }
 

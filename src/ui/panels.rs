@@ -5,7 +5,9 @@
 use super::app::NoblescopeApp;
 use super::help;
 use super::palette;
+use super::pending::Ask;
 use super::setup_form::{FormAction, SetupForm};
+use super::structure_panel::StructureAction;
 use super::tuning_panel::TuningAction;
 use crate::engine::Command;
 use crate::io::summary::MODEL_CAUTION;
@@ -104,6 +106,23 @@ impl NoblescopeApp {
                 ui.separator();
                 self.run.plots.show(ui, w);
             });
+        if self.structure_open {
+            let mut open = true;
+            let running = self.run.running.clone();
+            let mut asked = None;
+            // Below the top bar and to the right, so Run, Step and the panel toggles stay free.
+            let right = ctx.content_rect().max.x;
+            egui::Window::new("Structure and motion")
+                .open(&mut open)
+                .default_pos(egui::pos2((right - 780.0).max(0.0), 48.0))
+                .default_size([760.0, 600.0])
+                .vscroll(true)
+                .show(&ctx, |ui| asked = self.run.structure.show(ui, &running));
+            self.structure_open = open;
+            if let Some(a) = asked {
+                self.structure_action(&ctx, a);
+            }
+        }
         help::show(&ctx, &mut self.help_open);
         self.confirm_leave(&ctx);
         drop_hint(&ctx);
@@ -153,6 +172,32 @@ impl NoblescopeApp {
                 }
             }
             FormAction::Revert => self.run.form = SetupForm::from_setup(&self.run.running),
+        }
+    }
+
+    fn structure_action(&mut self, ctx: &egui::Context, action: StructureAction) {
+        match action {
+            StructureAction::Reset => self.send(Command::ResetAnalyses),
+            StructureAction::FitWindow(w) => self.send(Command::SetFitWindow(w)),
+            StructureAction::MeasureInNve => {
+                self.send(Command::SetThermostat {
+                    ensemble: crate::io::setup::Ensemble::Nve,
+                    temperature: self.run.running.temperature,
+                });
+                self.send(Command::ResetAnalyses);
+                self.run
+                    .status
+                    .info("Switched to constant energy (NVE); the analyses start again from here.");
+            }
+            StructureAction::Picture(rect) => {
+                self.ask_file(ctx, Ask::SavePlotPicture(rect), super::files::pick_png_to_save);
+            }
+            StructureAction::Export(file) => {
+                let name = file.file_name();
+                self.ask_file(ctx, Ask::ExportAnalysis(file), move || {
+                    super::files::pick_analysis_csv_to_save(name)
+                });
+            }
         }
     }
 

@@ -27,9 +27,111 @@ pub enum ThermostatKind {
 /// One row of the composition table.
 #[derive(Clone, Debug, PartialEq)]
 pub struct SpeciesRow {
+    /// The species picked (for a custom row: as last built from its fields).
     pub kind: Species,
     /// Share as typed.
     pub share: String,
+    /// The fields of a species of the user's own, when the row is one.
+    pub custom: Option<CustomRow>,
+}
+
+/// The fields of a custom species as typed.
+#[derive(Clone, Debug, PartialEq)]
+pub struct CustomRow {
+    pub name: String,
+    pub epsilon: String,
+    /// ε in kJ/mol (else ε/k_B in K).
+    pub epsilon_kj_mol: bool,
+    pub sigma: String,
+    /// σ in nm (else Å).
+    pub sigma_nm: bool,
+    /// Mass in Da.
+    pub mass: String,
+}
+
+impl CustomRow {
+    /// The fields of `kind`: its own for a custom species, else its parameters in K, Å and Da
+    /// under the name "my <species>".
+    pub fn from_species(kind: Species) -> CustomRow {
+        use crate::physics::species::{Size, WellDepth};
+        use crate::ui::unit_field::format_number;
+        if let Species::Custom {
+            name,
+            epsilon,
+            sigma,
+            mass,
+        } = kind
+        {
+            let (epsilon, epsilon_kj_mol) = match epsilon {
+                WellDepth::Kelvin(k) => (k, false),
+                WellDepth::KiloJoulesPerMole(e) => (e, true),
+            };
+            let (sigma, sigma_nm) = match sigma {
+                Size::Angstrom(a) => (a, false),
+                Size::Nanometre(n) => (n, true),
+            };
+            return CustomRow {
+                name: name.as_str().to_string(),
+                epsilon: format_number(epsilon),
+                epsilon_kj_mol,
+                sigma: format_number(sigma),
+                sigma_nm,
+                mass: format_number(mass.grams_per_mole()),
+            };
+        }
+        let p = if kind.is_real() {
+            kind.params()
+        } else {
+            Species::Argon.params()
+        };
+        let base = if kind.is_real() { kind } else { Species::Argon };
+        CustomRow {
+            name: format!("my {}", base.label()),
+            epsilon: format_number(p.epsilon_kelvin),
+            epsilon_kj_mol: false,
+            sigma: format_number(p.sigma_angstrom),
+            sigma_nm: false,
+            mass: format_number(p.molar_mass),
+        }
+    }
+
+    /// The species these fields describe; fields that are not numbers get an error (keyed
+    /// `species[i].kind.<field>`) and a stand-in value.
+    fn build(&self, i: usize, errors: &mut FieldErrors) -> Species {
+        use crate::physics::species::{AtomMass, Size, WellDepth};
+        let mut number = |f: &str, text: &str, unit: &str| -> f64 {
+            text.trim().parse::<f64>().unwrap_or_else(|_| {
+                let field = format!("species[{i}].kind.{f}");
+                errors.insert(
+                    field.clone(),
+                    format!(
+                        "{field}: \"{}\" is not a number; allowed: a number in {unit}",
+                        text.trim()
+                    ),
+                );
+                1.0
+            })
+        };
+        let eps_unit = if self.epsilon_kj_mol { "kJ/mol" } else { "K" };
+        let e = number("epsilon", &self.epsilon, eps_unit);
+        let sig_unit = if self.sigma_nm { "nm" } else { "Å" };
+        let sg = number("sigma", &self.sigma, sig_unit);
+        let m = number("mass", &self.mass, "Da");
+        Species::Custom {
+            name: self.name.as_str().into(),
+            epsilon: if self.epsilon_kj_mol {
+                WellDepth::KiloJoulesPerMole(e)
+            } else {
+                WellDepth::Kelvin(e)
+            },
+            sigma: if self.sigma_nm {
+                Size::Nanometre(sg)
+            } else {
+                Size::Angstrom(sg)
+            },
+            mass: AtomMass::Dalton(m),
+        }
+    }
 }
 
 /// What the user asked the form to do this frame.
@@ -67,6 +169,16 @@ pub struct SetupForm {
     pub trajectory_every: Option<u64>,
     /// Kept from the loaded setup (not edited in the form).
     pub rdf_every: Option<u64>,
+    /// Kept from the loaded setup (not edited in the form).
+    pub rdf_reach: crate::io::setup::RdfReach,
+    /// Kept from the loaded setup (not edited in the form).
+    pub diffusion_window: Option<(crate::io::setup::Duration, crate::io::setup::Duration)>,
+    /// Kept from the loaded setup (not edited in the form).
+    pub dynamics_every: Option<u64>,
+    /// Kept from the loaded setup (not edited in the form).
+    pub speeds_every: Option<u64>,
+    /// Kept from the loaded setup (not edited in the form).
+    pub temperature_ramp: Option<crate::io::setup::TemperatureRamp>,
     /// Kept from the loaded setup (not edited in the form; shown in the statistics panel).
     pub precision_targets: Vec<PrecisionSetting>,
     /// The setup Apply last refused because it does not fit in memory, and why; shown at the
@@ -139,6 +251,7 @@ impl SetupForm {
                 .map(|x| SpeciesRow {
                     kind: x.kind,
                     share: super::unit_field::format_number(x.share),
+                    custom: x.kind.is_custom().then(|| CustomRow::from_species(x.kind)),
                 })
                 .collect(),
             atoms: s.atoms.to_string(),
@@ -158,6 +271,11 @@ impl SetupForm {
             sample_every: s.sample_every.to_string(),
             trajectory_every: s.trajectory_every,
             rdf_every: s.rdf_every,
+            rdf_reach: s.rdf_reach,
+            diffusion_window: s.diffusion_window,
+            dynamics_every: s.dynamics_every,
+            speeds_every: s.speeds_every,
+            temperature_ramp: s.temperature_ramp,
             precision_targets: s.precision_targets.clone(),
             memory_refusal: None,
         }
@@ -184,10 +302,11 @@ impl SetupForm {
                     1.0
                 }
             };
-            species.push(SpeciesShare {
-                kind: row.kind,
-                share,
-            });
+            let kind = match &row.custom {
+                Some(c) => c.build(i, &mut errors),
+                None => row.kind,
+            };
+            species.push(SpeciesShare { kind, share });
         }
         use crate::io::setup::{Density, Duration, Length, Rate, Temperature};
         fn unit<T>(errors: &mut FieldErrors, field: &str, r: Result<T, String>, fallback: T) -> T {
@@ -265,6 +384,11 @@ impl SetupForm {
             sample_every,
             trajectory_every: self.trajectory_every,
             rdf_every: self.rdf_every,
+            rdf_reach: self.rdf_reach,
+            diffusion_window: self.diffusion_window,
+            dynamics_every: self.dynamics_every,
+            speeds_every: self.speeds_every,
+            temperature_ramp: self.temperature_ramp,
             precision_targets: self.precision_targets.clone(),
         };
         (setup, errors)
@@ -339,12 +463,28 @@ impl SetupForm {
         let n = self.species.len();
         for (i, row) in self.species.iter_mut().enumerate() {
             ui.horizontal(|ui| {
+                let shown = match &row.custom {
+                    Some(c) => format!("custom: {}", c.name),
+                    None => row.kind.label().to_string(),
+                };
                 egui::ComboBox::from_id_salt(("species", i))
-                    .selected_text(row.kind.label())
+                    .selected_text(shown)
                     .width(100.0)
                     .show_ui(ui, |ui| {
                         for s in Species::ALL {
-                            ui.selectable_value(&mut row.kind, s, s.label());
+                            let on = row.custom.is_none() && row.kind == s;
+                            if ui.selectable_label(on, s.label()).clicked() {
+                                row.kind = s;
+                                row.custom = None;
+                            }
+                        }
+                        if ui
+                            .selectable_label(row.custom.is_some(), "custom…")
+                            .on_hover_text("a parameter set of your own: name, ε, σ and mass")
+                            .clicked()
+                            && row.custom.is_none()
+                        {
+                            row.custom = Some(CustomRow::from_species(row.kind));
                         }
                     })
                     .response
@@ -364,8 +504,14 @@ impl SetupForm {
                     remove = Some(i);
                 }
             });
+            if let Some(c) = row.custom.as_mut() {
+                custom_fields(ui, i, c);
+            }
             err_at(ui, &format!("species[{i}].share"));
             err_at(ui, &format!("species[{i}].kind"));
+            for f in ["name", "epsilon", "sigma", "mass"] {
+                err_at(ui, &format!("species[{i}].kind.{f}"));
+            }
         }
         if let Some(i) = remove {
             self.species.remove(i);
@@ -380,6 +526,7 @@ impl SetupForm {
                     self.species.push(SpeciesRow {
                         kind: s,
                         share: "0".into(),
+                        custom: None,
                     });
                 }
             }
@@ -526,6 +673,45 @@ impl SetupForm {
     }
 }
 
+/// The name, ε, σ and mass fields of a custom species row, with their unit pickers.
+fn custom_fields(ui: &mut egui::Ui, i: usize, c: &mut CustomRow) {
+    ui.horizontal(|ui| {
+        ui.add_space(16.0);
+        let l = ui.label("name");
+        ui.add(egui::TextEdit::singleline(&mut c.name).desired_width(150.0))
+            .labelled_by(l.id);
+        let l = ui.label("mass");
+        ui.add(egui::TextEdit::singleline(&mut c.mass).desired_width(60.0))
+            .labelled_by(l.id);
+        ui.label("Da");
+    });
+    ui.horizontal(|ui| {
+        ui.add_space(16.0);
+        let l = ui.label("ε");
+        ui.add(egui::TextEdit::singleline(&mut c.epsilon).desired_width(60.0))
+            .labelled_by(l.id)
+            .on_hover_text("well depth: ε/k_B in K, or ε in kJ/mol");
+        egui::ComboBox::from_id_salt(("custom epsilon unit", i))
+            .selected_text(if c.epsilon_kj_mol { "kJ/mol" } else { "K" })
+            .width(60.0)
+            .show_ui(ui, |ui| {
+                ui.selectable_value(&mut c.epsilon_kj_mol, false, "K");
+                ui.selectable_value(&mut c.epsilon_kj_mol, true, "kJ/mol");
+            });
+        let l = ui.label("σ");
+        ui.add(egui::TextEdit::singleline(&mut c.sigma).desired_width(60.0))
+            .labelled_by(l.id)
+            .on_hover_text("size parameter σ, in Å or nm");
+        egui::ComboBox::from_id_salt(("custom sigma unit", i))
+            .selected_text(if c.sigma_nm { "nm" } else { "Å" })
+            .width(50.0)
+            .show_ui(ui, |ui| {
+                ui.selectable_value(&mut c.sigma_nm, false, "Å");
+                ui.selectable_value(&mut c.sigma_nm, true, "nm");
+            });
+    });
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -555,6 +741,34 @@ mod tests {
                 .unwrap()
                 .contains("not a number")
         );
+    }
+
+    #[test]
+    fn a_custom_row_builds_a_custom_species_and_its_errors_sit_at_its_fields() {
+        let mut f = SetupForm::from_setup(&argon());
+        f.species[0].custom = Some(CustomRow::from_species(f.species[0].kind));
+        let c = f.species[0].custom.as_mut().unwrap();
+        c.name = "argon, 120 K set".into();
+        c.epsilon = "120".into();
+        c.sigma = "0.34".into();
+        c.sigma_nm = true;
+        let s = f.build().unwrap();
+        let p = s.species[0].kind.params();
+        assert_eq!((p.epsilon_kelvin, p.molar_mass), (120.0, 39.948));
+        assert!((p.sigma_angstrom - 3.4).abs() < 1e-15);
+        // A custom species loaded from a setup comes back as the same row.
+        assert_eq!(SetupForm::from_setup(&s).build().unwrap(), s);
+        let c = f.species[0].custom.as_mut().unwrap();
+        c.epsilon = "-1".into();
+        let e = f.build().unwrap_err();
+        assert!(
+            e.get("species[0].kind.epsilon")
+                .unwrap()
+                .contains("allowed: ε/k_B from 1 K")
+        );
+        f.species[0].custom.as_mut().unwrap().mass = "heavy".into();
+        let e = f.build().unwrap_err();
+        assert!(e.get("species[0].kind.mass").unwrap().contains("not a number"));
     }
 
     #[test]
