@@ -28,6 +28,7 @@ fn small(steps: u64, sample_every: u64) -> Setup {
         sample_every,
         trajectory_every: None,
         rdf_every: None,
+        recover: false,
     }
 }
 

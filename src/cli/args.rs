@@ -28,6 +28,10 @@ pub struct RunFlags {
     /// Replace the files of an earlier run in the output folder.
     #[arg(long)]
     pub overwrite: bool,
+    /// On a watchdog alarm go back to the last healthy snapshot with half the timestep, at
+    /// most three times (each recovery is listed in summary.json).
+    #[arg(long)]
+    pub recover: bool,
 }
 
 // The subcommands.
@@ -120,6 +124,9 @@ pub enum Cmd {
         /// Also time each stage (kick, drift, skin check, list build, forces) over normal steps.
         #[arg(long)]
         stages: bool,
+        /// Also time watched against plain steps, interleaved: the per-step watchdog's cost.
+        #[arg(long)]
+        watchdog: bool,
     },
     /// Pressure, residual energy, compressibility factor and region of the Lennard-Jones fluid
     /// from the equation of state of Thol et al. (2016).

@@ -106,9 +106,10 @@ pub fn run(cmd: Cmd) -> Result<Next, CliError> {
             threads,
             json,
             stages,
+            watchdog,
         } => {
             set_threads(threads)?;
-            bench(&atoms, steps, warmup, json.as_deref(), stages)?;
+            bench(&atoms, steps, warmup, json.as_deref(), stages, watchdog)?;
         }
         Cmd::Eos {
             temperature,
@@ -186,6 +187,7 @@ fn run_to_end(
         threads,
         quiet: run.quiet,
         overwrite: run.overwrite,
+        recover: run.recover,
     };
     let summary = headless::run(session, fresh, &opts)?;
     if !run.quiet {
@@ -243,6 +245,7 @@ fn bench(
     warmup: u64,
     json: Option<&Path>,
     stages: bool,
+    watchdog: bool,
 ) -> Result<(), CliError> {
     let mut sorted = atoms.to_vec();
     sorted.sort_unstable();
@@ -262,6 +265,11 @@ fn bench(
     if stages {
         for &a in atoms {
             output::bench_stages(&bench::measure_stages(a, steps));
+        }
+    }
+    if watchdog {
+        for &a in atoms {
+            output::bench_watchdog(&bench::measure_watchdog(a, steps));
         }
     }
     if let Some(path) = json {

@@ -389,7 +389,7 @@ impl Engine {
 
     /// Refuses `doing` after a blow-up.
     fn check_not_blown_up(&self, doing: &'static str) -> Result<(), Refusal> {
-        if matches!(self.last_alarm, Some(Alarm::NonFinite { .. })) {
+        if self.last_alarm.as_ref().is_some_and(|a| a.kind.is_blow_up()) {
             Err(Refusal::BlewUp { doing })
         } else {
             Ok(())
@@ -483,8 +483,7 @@ impl Engine {
             .map(|a| a.step())
             .unwrap_or(session.simulation().step_count() + 1);
         let state = self.rewind.rewind_before(before).ok_or(Refusal::NoSnapshot)?;
-        let spec = session.simulation().spec().clone();
-        *session.simulation_mut() = crate::physics::Simulation::from_state(spec, state)?;
+        session.restore(state)?;
         self.running = false;
         self.last_alarm = None;
         self.emit(Event::Rewound {

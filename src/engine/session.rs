@@ -1,17 +1,18 @@
 //! A session: one simulation with its setup, sampling schedule and watchdog. The engine thread
 //! and the headless runner both drive a session, so they step and sample identically.
 
-use super::watchdog::Alarm;
-use super::watchdog::Watchdog;
+use super::watchdog::{Alarm, Watchdog, non_finite};
 use crate::io::checkpoint::Checkpoint;
 use crate::io::setup::{Duration, Ensemble, Length, Setup, SetupError, Temperature};
-use crate::physics::{Observables, PotentialMode, Simulation, UnitSystem};
+use crate::physics::{Observables, PotentialMode, Simulation, SimulationState, SpecError, UnitSystem};
 
 /// One simulation and what it was set up from.
 pub struct Session {
     setup: Setup,
     sim: Simulation,
     watchdog: Watchdog,
+    /// Whether the state the session started from (or was restored to) has been checked.
+    start_checked: bool,
 }
 
 /// What one step produced.
@@ -27,11 +28,12 @@ impl Session {
     /// Validates the setup and builds its start configuration.
     pub fn new(setup: Setup) -> Result<Session, SetupError> {
         let spec = setup.resolve_for_this_machine()?;
-        let sim = Simulation::new(spec)?;
+        let mut sim = Simulation::new(spec)?;
         Ok(Session {
             setup,
+            watchdog: Watchdog::new(&mut sim),
             sim,
-            watchdog: Watchdog::default(),
+            start_checked: false,
         })
     }
 
@@ -40,11 +42,12 @@ impl Session {
         // Setup, spec and state checked as strictly as a setup file; the spec carries live changes.
         c.check()?;
         c.setup.check_memory_available()?;
-        let sim = Simulation::from_state(c.spec, c.state)?;
+        let mut sim = Simulation::from_state(c.spec, c.state)?;
         Ok(Session {
             setup: c.setup,
+            watchdog: Watchdog::new(&mut sim),
             sim,
-            watchdog: Watchdog::default(),
+            start_checked: false,
         })
     }
 
@@ -58,9 +61,27 @@ impl Session {
         &self.sim
     }
 
-    /// Mutable simulation (rewind, tests).
+    /// Mutable simulation (tests). The next [`Session::step`] checks the state it finds first.
     pub fn simulation_mut(&mut self) -> &mut Simulation {
+        self.start_checked = false;
+        self.watchdog.forget();
         &mut self.sim
+    }
+
+    /// Goes back to `state` (a rewind): the spec in force stays, the watchdog starts afresh.
+    pub fn restore(&mut self, state: SimulationState) -> Result<(), SpecError> {
+        let spec = self.sim.spec().clone();
+        let mut sim = Simulation::from_state(spec, state)?;
+        sim.set_move_bound(self.watchdog.bounds.max_move);
+        self.sim = sim;
+        self.watchdog.forget();
+        self.start_checked = true;
+        Ok(())
+    }
+
+    /// The watchdog (its bounds).
+    pub fn watchdog(&self) -> &Watchdog {
+        &self.watchdog
     }
 
     /// Units of the reference species.
@@ -86,19 +107,32 @@ impl Session {
         self.sim.observe()
     }
 
-    /// Takes one step; samples and checks at multiples of `sample_every`.
+    /// Takes one step, checks it with the watchdog and samples at multiples of `sample_every`.
+    ///
+    /// The first call after the start (or after [`Session::simulation_mut`]) checks the state
+    /// it finds before stepping: a start configuration with overlapping atoms is stopped at its
+    /// own step, with no step taken, before the forces fling the atoms apart.
     pub fn step(&mut self) -> StepOutcome {
-        if let Err(b) = self.sim.step() {
-            return StepOutcome {
-                sample: None,
-                alarm: Some(Watchdog::blowup(&b)),
-            };
+        if !self.start_checked {
+            self.start_checked = true;
+            if let Some(a) = self.watchdog.check(&self.sim) {
+                return StepOutcome {
+                    sample: None,
+                    alarm: Some(a),
+                };
+            }
         }
-        let mut out = StepOutcome::default();
-        if self.sim.step_count().is_multiple_of(self.setup.sample_every) {
-            let o = self.sim.observe();
-            out.alarm = self.watchdog.check(&self.sim, &o);
-            out.sample = Some(o);
+        let stepped = self.sim.step();
+        let mut out = StepOutcome {
+            alarm: self.watchdog.check(&self.sim),
+            sample: None,
+        };
+        if stepped.is_err() && out.alarm.is_none() {
+            out.alarm = Some(non_finite(&self.sim));
+        }
+        let lost = out.alarm.as_ref().is_some_and(|a| a.kind.is_blow_up());
+        if !lost && self.sim.step_count().is_multiple_of(self.setup.sample_every) {
+            out.sample = Some(self.sim.observe());
         }
         out
     }
@@ -129,6 +163,7 @@ impl Session {
         let spec = setup.resolve()?;
         self.sim
             .set_interaction(spec.cutoff, spec.skin, spec.potential, spec.tail_correction)?;
+        self.watchdog.forget();
         self.setup = setup;
         Ok(())
     }

@@ -149,6 +149,10 @@ pub struct Setup {
     /// steps, from `equilibration_steps` on; g(r) reaches out to the cutoff.
     #[serde(default)]
     pub rdf_every: Option<u64>,
+    /// Headless runs recover from watchdog alarms (as `run --recover`): back to the last
+    /// healthy snapshot with half the timestep, at most three times.
+    #[serde(default)]
+    pub recover: bool,
 }
 
 fn default_skin() -> Length {

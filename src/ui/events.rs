@@ -143,9 +143,21 @@ pub fn reduce(view: &mut RunView, event: Event) -> Echo {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::engine::{Alarm, Status};
+    use crate::engine::{Alarm, AlarmKind, Status};
     use crate::io::setup::Duration;
     use crate::physics::{Observables, Species};
+
+    fn alarm(kind: AlarmKind, step: u64) -> Alarm {
+        Alarm {
+            kind,
+            step,
+            time: step as f64 * 0.005,
+            value: 0.1,
+            bound: 0.05,
+            atoms: Vec::new(),
+            detail: "seen".into(),
+        }
+    }
 
     fn argon() -> Setup {
         Setup::parse(include_str!("../../assets/argon-cold-trap.ron"), "argon").unwrap()
@@ -167,11 +179,7 @@ mod tests {
         let mut view = RunView::new(&old);
         let mut new = old.clone();
         new.atoms = 864;
-        view.status.alarm = Some(Alarm::Drift {
-            step: 3,
-            drift: 0.1,
-            limit: 0.01,
-        });
+        view.status.alarm = Some(alarm(AlarmKind::Drift, 3));
         started(&mut view, &new, 864);
         assert_eq!(view.running, new);
         assert_eq!(view.atoms, 864);
@@ -259,13 +267,7 @@ mod tests {
             reduce(&mut view, Event::Sample(o));
         }
         assert_eq!(view.plots.samples(), 3);
-        reduce(
-            &mut view,
-            Event::Alarm(Alarm::NonFinite {
-                step: 30,
-                atoms: vec![1],
-            }),
-        );
+        reduce(&mut view, Event::Alarm(alarm(AlarmKind::NonFinite, 30)));
         assert!(view.status.alarm.is_some());
         reduce(
             &mut view,

@@ -64,6 +64,8 @@ pub struct SetupForm {
     pub sample_every: String,
     /// Kept from the loaded setup (not edited in the form).
     pub trajectory_every: Option<u64>,
+    /// Carried through unchanged (the form has no control for it).
+    pub recover: bool,
     /// Kept from the loaded setup (not edited in the form).
     pub rdf_every: Option<u64>,
     /// The setup Apply last refused because it does not fit in memory, and why; shown at the
@@ -154,6 +156,7 @@ impl SetupForm {
             equilibration_steps: s.equilibration_steps.to_string(),
             sample_every: s.sample_every.to_string(),
             trajectory_every: s.trajectory_every,
+            recover: s.recover,
             rdf_every: s.rdf_every,
             memory_refusal: None,
         }
@@ -260,6 +263,7 @@ impl SetupForm {
             equilibration_steps,
             sample_every,
             trajectory_every: self.trajectory_every,
+            recover: self.recover,
             rdf_every: self.rdf_every,
         };
         (setup, errors)
