@@ -29,6 +29,7 @@ fn small(steps: u64, sample_every: u64) -> Setup {
         trajectory_every: None,
         rdf_every: None,
         recover: false,
+        start: Default::default(),
     }
 }
 

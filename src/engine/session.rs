@@ -3,8 +3,10 @@
 
 use super::watchdog::{Alarm, Watchdog, non_finite};
 use crate::io::checkpoint::Checkpoint;
-use crate::io::setup::{Duration, Ensemble, Length, Setup, SetupError, Temperature};
+use crate::io::setup::{Duration, Ensemble, Length, Setup, SetupError, Start, Temperature};
+use crate::io::start_file;
 use crate::physics::{Observables, PotentialMode, Simulation, SimulationState, SpecError, UnitSystem};
+use std::path::Path;
 
 /// One simulation and what it was set up from.
 pub struct Session {
@@ -28,7 +30,20 @@ impl Session {
     /// Validates the setup and builds its start configuration.
     pub fn new(setup: Setup) -> Result<Session, SetupError> {
         let spec = setup.resolve_for_this_machine()?;
-        let mut sim = Simulation::new(spec)?;
+        let mut sim = match &setup.start {
+            Start::Lattice => Simulation::new(spec)?,
+            Start::File { path } => {
+                let units = setup.units();
+                let angstrom = if units.has_real_units() {
+                    units.sigma_angstrom()
+                } else {
+                    1.0
+                };
+                let (l, kinds, counts) = (spec.box_length(), spec.kinds.clone(), spec.counts.clone());
+                let c = start_file::read(Path::new(path), &kinds, &counts, l, angstrom)?;
+                Simulation::with_positions(spec, c.positions, c.types)?
+            }
+        };
         Ok(Session {
             setup,
             watchdog: Watchdog::new(&mut sim),

@@ -8,6 +8,7 @@ pub mod numbers;
 pub mod rdf_csv;
 pub mod run_folder;
 pub mod setup;
+pub mod start_file;
 pub mod summary;
 pub mod trajectory;
 

@@ -358,8 +358,43 @@ impl Simulation {
     /// Builds the start configuration (fcc lattice, Maxwell–Boltzmann velocities) and forces.
     pub fn new(spec: SimulationSpec) -> Result<Self, SpecError> {
         spec.check()?;
+        let (positions, types) = lattice::fcc_start(&spec.counts, spec.box_length(), spec.seed);
+        Self::with_positions(spec, positions, types)
+    }
+
+    /// Starts from given positions (σ, in the box) and species indices (into `spec.kinds`),
+    /// with Maxwell–Boltzmann velocities as [`Simulation::new`] draws them. The counts of each
+    /// type must be the spec's, every position finite.
+    pub fn with_positions(
+        spec: SimulationSpec,
+        positions: Vec<[f64; 3]>,
+        types: Vec<u8>,
+    ) -> Result<Self, SpecError> {
+        spec.check()?;
+        let mut counts = vec![0usize; spec.kinds.len()];
+        for &t in &types {
+            if let Some(c) = counts.get_mut(t as usize) {
+                *c += 1;
+            }
+        }
+        if positions.len() != types.len()
+            || counts != spec.counts
+            || counts.iter().sum::<usize>() != types.len()
+        {
+            return Err(SpecError {
+                field: "start",
+                value: format!("{} positions, atoms per species {counts:?}", positions.len()),
+                allowed: format!("the spec's counts {:?}", spec.counts),
+            });
+        }
+        if let Some(i) = positions.iter().position(|p| !p.iter().all(|x| x.is_finite())) {
+            return Err(SpecError {
+                field: "start",
+                value: format!("position of atom {i}: {:?}", positions[i]),
+                allowed: "finite coordinates".into(),
+            });
+        }
         let l = spec.box_length();
-        let (positions, types) = lattice::fcc_start(&spec.counts, l, spec.seed);
         let masses = spec.masses();
         let velocities = lattice::maxwell_boltzmann(
             &masses,

@@ -66,6 +66,8 @@ pub struct SetupForm {
     pub trajectory_every: Option<u64>,
     /// Carried through unchanged (the form has no control for it).
     pub recover: bool,
+    /// Carried through unchanged (the form has no control for it).
+    pub start: crate::io::setup::Start,
     /// Kept from the loaded setup (not edited in the form).
     pub rdf_every: Option<u64>,
     /// The setup Apply last refused because it does not fit in memory, and why; shown at the
@@ -157,6 +159,7 @@ impl SetupForm {
             sample_every: s.sample_every.to_string(),
             trajectory_every: s.trajectory_every,
             recover: s.recover,
+            start: s.start.clone(),
             rdf_every: s.rdf_every,
             memory_refusal: None,
         }
@@ -264,6 +267,7 @@ impl SetupForm {
             sample_every,
             trajectory_every: self.trajectory_every,
             recover: self.recover,
+            start: self.start.clone(),
             rdf_every: self.rdf_every,
         };
         (setup, errors)
