@@ -3,6 +3,7 @@
 //! window and the engine thread.
 
 pub mod bench;
+pub mod flight_recorder;
 pub mod frame;
 pub mod headless;
 pub mod protocol;
@@ -13,6 +14,7 @@ pub mod session;
 pub mod tuning;
 pub mod watchdog;
 
+pub use flight_recorder::FlightRecord;
 pub use frame::{Frame, FrameMailbox};
 pub use protocol::{Command, CommandKind, Event, Status};
 pub use runner::{EngineHandle, Refusal};

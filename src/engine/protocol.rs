@@ -3,6 +3,7 @@
 //! Values crossing this boundary carry their unit in their name (`time_tau`, `duration_tau`)
 //! or in their type (the setup's [`Duration`] and [`Length`]). This file holds data types only.
 
+use super::flight_recorder::FlightRecord;
 use super::tuning::{TuneRequest, TuningReport};
 use super::watchdog::Alarm;
 use crate::io::setup::{Duration, Ensemble, Length, Setup, Temperature};
@@ -86,6 +87,8 @@ pub enum Event {
     Rejected { command: CommandKind, reason: String },
     /// The watchdog paused the run.
     Alarm(Alarm),
+    /// The flight recorder's frames up to the alarm just sent (the last is the alarm's state).
+    FlightRecord(Box<FlightRecord>),
     /// State went back to this step and simulated time (τ); later samples no longer hold.
     Rewound { step: u64, time_tau: f64 },
     /// A checkpoint was written.

@@ -4,6 +4,7 @@
 //! (so no sample is ever lost) and frames through a one-slot [`FrameMailbox`]. The simulation
 //! never waits for drawing: it fills a frame only when the last one was taken.
 
+use super::flight_recorder::FlightRecorder;
 use super::frame::{Frame, FrameMailbox};
 use super::protocol::{Command, CommandKind, Event, Status};
 use super::rewind::RewindBuffer;
@@ -134,6 +135,7 @@ struct Engine {
     wake: Option<Box<dyn Fn() + Send>>,
     running: bool,
     rewind: RewindBuffer,
+    recorder: FlightRecorder,
     last_alarm: Option<Alarm>,
     /// Steps and time since the last status, for the rates.
     rate_steps: u64,
@@ -198,6 +200,7 @@ impl Engine {
             wake,
             running: false,
             rewind: RewindBuffer::new(1, SNAPSHOT_EVERY),
+            recorder: FlightRecorder::default(),
             last_alarm: None,
             rate_steps: 0,
             rate_since: Instant::now(),
@@ -250,6 +253,8 @@ impl Engine {
     fn start(&mut self, session: &Session) {
         self.rewind = RewindBuffer::new(session.simulation().system().len(), SNAPSHOT_EVERY);
         self.rewind.push(session.simulation().state());
+        self.recorder = FlightRecorder::new(session.simulation().system().len());
+        self.recorder.record(session.simulation());
         self.last_alarm = None;
         self.stop_at_steps = session.simulation().step_count() < session.setup().steps;
         self.emit(Event::Started {
@@ -323,10 +328,15 @@ impl Engine {
             self.running = false;
             self.last_alarm = Some(a.clone());
             self.emit(Event::Alarm(a));
+            let record = self.recorder.take(session.simulation());
+            self.emit(Event::FlightRecord(Box::new(record)));
             self.send_status(session);
             return;
         }
         let step = session.simulation().step_count();
+        if FlightRecorder::due(step) {
+            self.recorder.record(session.simulation());
+        }
         if self.rewind.due(step) {
             self.rewind.push(session.simulation().state());
         }
@@ -484,6 +494,8 @@ impl Engine {
             .unwrap_or(session.simulation().step_count() + 1);
         let state = self.rewind.rewind_before(before).ok_or(Refusal::NoSnapshot)?;
         session.restore(state)?;
+        self.recorder.clear();
+        self.recorder.record(session.simulation());
         self.running = false;
         self.last_alarm = None;
         self.emit(Event::Rewound {

@@ -7,8 +7,8 @@ use super::setup_form::SetupForm;
 use super::status::StatusLine;
 use super::tuning_panel::TuningPanel;
 use super::unit_field::format_number;
-use crate::engine::Event;
 use crate::engine::{CommandKind, TuningReport};
+use crate::engine::{Event, FlightRecord};
 use crate::io::setup::{Ensemble, Setup};
 use crate::physics::UnitSystem;
 
@@ -26,6 +26,10 @@ pub struct RunView {
     pub tuning: TuningPanel,
     /// Atoms of the running simulation (0 until it started).
     pub atoms: usize,
+    /// The flight recorder's frames up to the last alarm.
+    pub recording: Option<FlightRecord>,
+    /// The recorded frame shown (an index into `recording`).
+    pub scrub: usize,
 }
 
 /// What an event means for the rest of the window beyond the state it changed.
@@ -69,6 +73,8 @@ impl RunView {
             status: StatusLine::default(),
             tuning: TuningPanel::for_setup(setup),
             atoms: 0,
+            recording: None,
+            scrub: 0,
         }
     }
 
@@ -101,6 +107,7 @@ pub fn reduce(view: &mut RunView, event: Event) -> Echo {
             view.atoms = atoms;
             view.plots.restart(setup.units(), thermostat_target(&setup));
             view.status.alarm = None;
+            view.recording = None;
         }
         Event::SetupChanged(setup) => {
             view.adopt(&setup);
@@ -121,10 +128,18 @@ pub fn reduce(view: &mut RunView, event: Event) -> Echo {
             view.tuning.cancelled();
             view.status.info("Tuning scan stopped.");
         }
-        Event::Alarm(a) => view.status.alarm = Some(a),
+        Event::Alarm(a) => {
+            view.status.alarm = Some(a);
+            view.recording = None;
+        }
+        Event::FlightRecord(r) => {
+            view.scrub = r.frames.len().saturating_sub(1);
+            view.recording = Some(*r);
+        }
         Event::Rewound { step, time_tau } => {
             view.plots.rewind_to(time_tau);
             view.status.alarm = None;
+            view.recording = None;
             view.status.info(format!(
                 "Rewound to step {step}; lower the timestep before running on."
             ));

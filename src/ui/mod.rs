@@ -19,6 +19,7 @@
 //!   driven each frame by [`scripted`];
 //! - [`window`]: opening the native window.
 
+pub mod alarm_view;
 pub mod app;
 pub mod cull;
 pub mod events;

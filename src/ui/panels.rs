@@ -2,6 +2,7 @@
 //! plots in the centre, and the overlays (help, leave question, drop hint); and the commands
 //! the form and the tuning panel ask for.
 
+use super::alarm_view::{self, AlarmAction, Focus};
 use super::app::NoblescopeApp;
 use super::help;
 use super::palette;
@@ -89,20 +90,43 @@ impl NoblescopeApp {
         egui::CentralPanel::default()
             .frame(bare(egui::Frame::central_panel(&style)))
             .show(ui, |ui| {
-                if self.run.status.alarm_banner(ui) {
-                    self.send(Command::Rewind);
+                let units = self.run.running.units();
+                if let Some(alarm) = self.run.status.alarm.clone() {
+                    let run = &mut self.run;
+                    match alarm_view::show(ui, &alarm, run.recording.as_ref(), &mut run.scrub, units) {
+                        AlarmAction::Rewind => self.send(Command::Rewind),
+                        AlarmAction::Dismiss => {
+                            self.run.status.alarm = None;
+                            self.run.recording = None;
+                        }
+                        AlarmAction::None => {}
+                    }
                 }
                 for note in self.run.running.cautions() {
                     ui.colored_label(palette::CAUTION_TEXT, format!("Note: {note}"));
                 }
+                let focus = self.run.status.alarm.as_ref().and_then(Focus::of);
+                if let Some(f) = &focus
+                    && self.focused_for != Some(f.step)
+                {
+                    self.focused_for = Some(f.step);
+                    self.view.look_at(f, self.frame.box_length);
+                }
+                let shown = match (
+                    &self.run.status.alarm,
+                    alarm_view::scrubbed(self.run.recording.as_ref(), self.run.scrub),
+                ) {
+                    (Some(_), Some(f)) => f,
+                    _ => &self.frame,
+                };
+                let cursor = self.run.status.alarm.as_ref().map(|_| shown.time_tau);
                 let h = ui.available_height();
                 let w = ui.available_width();
-                let units = self.run.running.units();
                 ui.allocate_ui(egui::vec2(w, (h * 0.56).max(200.0)), |ui| {
-                    self.view.show(ui, &self.frame, units)
+                    self.view.show(ui, shown, units, focus.as_ref())
                 });
                 ui.separator();
-                self.run.plots.show(ui, w);
+                self.run.plots.show(ui, w, cursor);
             });
         help::show(&ctx, &mut self.help_open);
         self.confirm_leave(&ctx);
