@@ -1,5 +1,6 @@
 //! After a watchdog alarm in the window: the banner names the atoms, the camera turns to the
-//! first of them, and the flight-recorder scrubber moves the view through the frames before it.
+//! first of them, the flight-recorder scrubber moves the view through the frames before it, and
+//! the rewind timeline goes back to a held snapshot.
 
 mod support;
 
@@ -73,7 +74,7 @@ fn after_an_alarm_the_banner_names_the_atoms_and_the_scrubber_moves_the_view() {
     let earliest = h.state().shown_frame_step();
     assert!(earliest < at_alarm, "the view stayed at step {earliest}");
     assert!(
-        h.query_by_label_contains(&format!("step {earliest}, t = "))
+        h.query_by_label_contains(&format!(": step {earliest}, t = "))
             .is_some(),
         "the scrubber's label follows"
     );
@@ -86,8 +87,14 @@ fn after_an_alarm_the_banner_names_the_atoms_and_the_scrubber_moves_the_view() {
         "one recorded frame later"
     );
 
-    // Rewind goes back to a healthy snapshot and leaves the record behind.
-    h.get_by_label("Rewind to the last healthy snapshot").click();
-    step_until(&mut h, 20, "the rewind", |a| a.alarm().is_none());
-    assert!(h.state().shown_frame_step() < alarm.step);
+    // The rewind timeline holds the healthy snapshot of step 0; picking it goes back there and
+    // leaves the record behind.
+    assert!(
+        h.query_by_label_contains("Rewind timeline: 1 snapshots held")
+            .is_some()
+    );
+    h.get_by_label_contains("snapshot at step 0, t = ").click();
+    step_until(&mut h, 20, "the rewind to step 0", |a| {
+        a.alarm().is_none() && a.engine_status().step == 0 && a.shown_frame_step() == 0
+    });
 }

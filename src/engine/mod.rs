@@ -16,7 +16,7 @@ pub mod watchdog;
 
 pub use flight_recorder::FlightRecord;
 pub use frame::{Frame, FrameMailbox};
-pub use protocol::{Command, CommandKind, Event, Status};
+pub use protocol::{Command, CommandKind, Event, SnapshotMark, Status};
 pub use runner::{EngineHandle, Refusal};
 pub use session::Session;
 pub use tuning::{TuneError, TuneInput, TuneRequest, TuningReport};

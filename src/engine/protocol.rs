@@ -44,6 +44,9 @@ pub enum Command {
     LoadCheckpoint(PathBuf),
     /// Go back to the newest safe snapshot before the last alarm.
     Rewind,
+    /// Go back to the held snapshot of this step (one of [`Event::Snapshots`]); its kind is
+    /// [`CommandKind::Rewind`].
+    RewindTo(u64),
     /// Scan the request's timesteps (τ) and cutoffs (σ) from the present state, each trial
     /// `duration_tau` long, on copies: the user's simulation is not advanced. The scan runs
     /// beside the engine loop and answers with [`Event::Tuned`]; one scan at a time.
@@ -70,6 +73,14 @@ pub struct Status {
     pub snapshots: usize,
 }
 
+/// One snapshot the rewind buffer holds: every one was taken after a step the watchdog passed.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct SnapshotMark {
+    pub step: u64,
+    /// Simulated time, τ.
+    pub time_tau: f64,
+}
+
 /// What the engine tells the window.
 #[derive(Clone, Debug, PartialEq)]
 pub enum Event {
@@ -89,6 +100,8 @@ pub enum Event {
     Alarm(Alarm),
     /// The flight recorder's frames up to the alarm just sent (the last is the alarm's state).
     FlightRecord(Box<FlightRecord>),
+    /// The snapshots the rewind buffer holds now, oldest first, and the memory they take.
+    Snapshots { marks: Vec<SnapshotMark>, bytes: usize },
     /// State went back to this step and simulated time (τ); later samples no longer hold.
     Rewound { step: u64, time_tau: f64 },
     /// A checkpoint was written.
@@ -192,7 +205,7 @@ impl Command {
             Command::SetThermostat { .. } => CommandKind::SetThermostat,
             Command::SaveCheckpoint(_) => CommandKind::SaveCheckpoint,
             Command::LoadCheckpoint(_) => CommandKind::LoadCheckpoint,
-            Command::Rewind => CommandKind::Rewind,
+            Command::Rewind | Command::RewindTo(_) => CommandKind::Rewind,
             Command::Tune(_) => CommandKind::Tune,
             Command::CancelTune => CommandKind::CancelTune,
             Command::Shutdown => CommandKind::Shutdown,

@@ -6,7 +6,7 @@
 
 use super::flight_recorder::FlightRecorder;
 use super::frame::{Frame, FrameMailbox};
-use super::protocol::{Command, CommandKind, Event, Status};
+use super::protocol::{Command, CommandKind, Event, SnapshotMark, Status};
 use super::rewind::RewindBuffer;
 use super::session::Session;
 use super::tuning::{self, TuneError, TuneRequest, TuneUnits, TuningReport};
@@ -263,6 +263,19 @@ impl Engine {
         });
         self.emit(Event::Sample(session.observe()));
         self.publish_frame(session, true);
+        self.send_snapshots();
+    }
+
+    /// Tells the window which snapshots are held.
+    fn send_snapshots(&self) {
+        self.emit(Event::Snapshots {
+            marks: self
+                .rewind
+                .marks()
+                .map(|(step, time_tau)| SnapshotMark { step, time_tau })
+                .collect(),
+            bytes: self.rewind.bytes(),
+        });
     }
 
     fn run(mut self, setup: Setup) {
@@ -339,6 +352,7 @@ impl Engine {
         }
         if self.rewind.due(step) {
             self.rewind.push(session.simulation().state());
+            self.send_snapshots();
         }
         let steps = session.setup().steps;
         if self.stop_at_steps && step >= steps {
@@ -461,7 +475,8 @@ impl Engine {
                     self.emit(Event::Saved(path));
                 })
             }
-            Command::Rewind => self.rewind(session),
+            Command::Rewind => self.rewind(session, None),
+            Command::RewindTo(step) => self.rewind(session, Some(step)),
             Command::CancelTune => {
                 if self.tune.is_some() {
                     self.cancel_tune();
@@ -485,14 +500,20 @@ impl Engine {
         true
     }
 
-    /// Goes back to the newest snapshot before the last alarm (or before the present step).
-    fn rewind(&mut self, session: &mut Session) -> Result<(), Refusal> {
+    /// Goes back to the snapshot of step `to`, or without one to the newest snapshot before
+    /// the last alarm (or before the present step).
+    fn rewind(&mut self, session: &mut Session, to: Option<u64>) -> Result<(), Refusal> {
         let before = self
             .last_alarm
             .as_ref()
             .map(|a| a.step())
             .unwrap_or(session.simulation().step_count() + 1);
-        let state = self.rewind.rewind_before(before).ok_or(Refusal::NoSnapshot)?;
+        let state = match to {
+            Some(step) if self.rewind.marks().any(|(s, _)| s == step) => self.rewind.rewind_to(step),
+            Some(_) => None,
+            None => self.rewind.rewind_before(before),
+        }
+        .ok_or(Refusal::NoSnapshot)?;
         session.restore(state)?;
         self.recorder.clear();
         self.recorder.record(session.simulation());
@@ -504,6 +525,7 @@ impl Engine {
         });
         self.emit(Event::Sample(session.observe()));
         self.publish_frame(session, true);
+        self.send_snapshots();
         Ok(())
     }
 

@@ -8,7 +8,7 @@ use super::status::StatusLine;
 use super::tuning_panel::TuningPanel;
 use super::unit_field::format_number;
 use crate::engine::{CommandKind, TuningReport};
-use crate::engine::{Event, FlightRecord};
+use crate::engine::{Event, FlightRecord, SnapshotMark};
 use crate::io::setup::{Ensemble, Setup};
 use crate::physics::UnitSystem;
 
@@ -30,6 +30,9 @@ pub struct RunView {
     pub recording: Option<FlightRecord>,
     /// The recorded frame shown (an index into `recording`).
     pub scrub: usize,
+    /// The snapshots the engine holds (the rewind timeline) and their memory.
+    pub snapshots: Vec<SnapshotMark>,
+    pub snapshot_bytes: usize,
 }
 
 /// What an event means for the rest of the window beyond the state it changed.
@@ -75,6 +78,8 @@ impl RunView {
             atoms: 0,
             recording: None,
             scrub: 0,
+            snapshots: Vec::new(),
+            snapshot_bytes: 0,
         }
     }
 
@@ -131,6 +136,10 @@ pub fn reduce(view: &mut RunView, event: Event) -> Echo {
         Event::Alarm(a) => {
             view.status.alarm = Some(a);
             view.recording = None;
+        }
+        Event::Snapshots { marks, bytes } => {
+            view.snapshots = marks;
+            view.snapshot_bytes = bytes;
         }
         Event::FlightRecord(r) => {
             view.scrub = r.frames.len().saturating_sub(1);

@@ -42,6 +42,7 @@ pub mod shortcuts;
 pub mod slab_view;
 pub mod start;
 pub mod status;
+pub mod timeline;
 pub mod tuning_panel;
 pub mod unit_field;
 pub mod watch;

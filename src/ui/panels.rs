@@ -7,6 +7,7 @@ use super::app::NoblescopeApp;
 use super::help;
 use super::palette;
 use super::setup_form::{FormAction, SetupForm};
+use super::timeline;
 use super::tuning_panel::TuningAction;
 use crate::engine::Command;
 use crate::io::summary::MODEL_CAUTION;
@@ -126,6 +127,17 @@ impl NoblescopeApp {
                     self.view.show(ui, shown, units, focus.as_ref())
                 });
                 ui.separator();
+                let alarm_mark = self.run.status.alarm.as_ref().map(|a| (a.step, a.time));
+                let latest = self.run.status.status.time_tau;
+                let run = &self.run;
+                if let Some(step) =
+                    timeline::show(ui, &run.snapshots, run.snapshot_bytes, alarm_mark, latest, units)
+                {
+                    self.run.status.info(format!(
+                        "Going back to step {step}; change timestep, cutoff or bath in the setup form (Change live), then Run."
+                    ));
+                    self.send(Command::RewindTo(step));
+                }
                 self.run.plots.show(ui, w, cursor);
             });
         help::show(&ctx, &mut self.help_open);
