@@ -120,3 +120,36 @@ fn recovery_gives_up_after_three_halvings_and_says_so() {
     assert!(!d.join("out/final.checkpoint").exists());
     let _ = std::fs::remove_dir_all(&d);
 }
+
+#[test]
+fn the_window_engine_recovers_a_setup_that_asks_for_it_and_says_so() {
+    use noblescope::engine::{Command, EngineHandle, Event};
+    use noblescope::io::Setup;
+    use std::time::{Duration, Instant};
+    let text_ = TOO_FAST.replace("sample_every: 10,", "sample_every: 10, recover: true,");
+    let h = EngineHandle::spawn(Setup::parse(&text_, "fast.ron").unwrap()).unwrap();
+    h.send(Command::Run);
+    let until = Instant::now() + Duration::from_secs(60);
+    let mut recovered = Vec::new();
+    let mut alarms = 0;
+    let mut reached = false;
+    while Instant::now() < until && !reached {
+        match h.next_event(Duration::from_millis(100)) {
+            Some(Event::Recovered {
+                alarm,
+                resumed_from_step,
+                timestep,
+            }) => {
+                assert!(resumed_from_step < alarm.step);
+                recovered.push(timestep.value());
+            }
+            Some(Event::Alarm(_)) => alarms += 1,
+            Some(Event::ReachedSteps { .. }) => reached = true,
+            _ => {}
+        }
+    }
+    assert!(reached, "the run reached its steps");
+    assert_eq!(alarms, 0, "every alarm was recovered");
+    assert!(!recovered.is_empty() && recovered.len() <= 3, "{recovered:?}");
+    assert_eq!(recovered[0], 0.025);
+}

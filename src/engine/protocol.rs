@@ -100,6 +100,14 @@ pub enum Event {
     Alarm(Alarm),
     /// The flight recorder's frames up to the alarm just sent (the last is the alarm's state).
     FlightRecord(Box<FlightRecord>),
+    /// A setup with `recover: true` met `alarm`: the engine went back to the snapshot of
+    /// `resumed_from_step`, halved the timestep to `timestep` and runs on (at most
+    /// [`crate::engine::recovery::MAX_RECOVERIES`] times per start).
+    Recovered {
+        alarm: Box<Alarm>,
+        resumed_from_step: u64,
+        timestep: Duration,
+    },
     /// The snapshots the rewind buffer holds now, oldest first, and the memory they take.
     Snapshots { marks: Vec<SnapshotMark>, bytes: usize },
     /// State went back to this step and simulated time (τ); later samples no longer hold.

@@ -7,6 +7,7 @@
 use super::flight_recorder::FlightRecorder;
 use super::frame::{Frame, FrameMailbox};
 use super::protocol::{Command, CommandKind, Event, SnapshotMark, Status};
+use super::recovery::MAX_RECOVERIES;
 use super::rewind::RewindBuffer;
 use super::session::Session;
 use super::tuning::{self, TuneError, TuneRequest, TuneUnits, TuningReport};
@@ -136,6 +137,8 @@ struct Engine {
     running: bool,
     rewind: RewindBuffer,
     recorder: FlightRecorder,
+    /// Recoveries since the last start (setups with `recover: true`).
+    recoveries: usize,
     last_alarm: Option<Alarm>,
     /// Steps and time since the last status, for the rates.
     rate_steps: u64,
@@ -201,6 +204,7 @@ impl Engine {
             running: false,
             rewind: RewindBuffer::new(1, SNAPSHOT_EVERY),
             recorder: FlightRecorder::default(),
+            recoveries: 0,
             last_alarm: None,
             rate_steps: 0,
             rate_since: Instant::now(),
@@ -255,6 +259,7 @@ impl Engine {
         self.rewind.push(session.simulation().state());
         self.recorder = FlightRecorder::new(session.simulation().system().len());
         self.recorder.record(session.simulation());
+        self.recoveries = 0;
         self.last_alarm = None;
         self.stop_at_steps = session.simulation().step_count() < session.setup().steps;
         self.emit(Event::Started {
@@ -264,6 +269,35 @@ impl Engine {
         self.emit(Event::Sample(session.observe()));
         self.publish_frame(session, true);
         self.send_snapshots();
+    }
+
+    /// Goes back to the newest snapshot before `alarm` with half the timestep, as a headless
+    /// `run --recover` does; returns whether it could.
+    fn recover(&mut self, session: &mut Session, alarm: &Alarm) -> bool {
+        let Some(state) = self.rewind.rewind_before(alarm.step) else {
+            return false;
+        };
+        let from = state.step;
+        let dt = session.setup().timestep;
+        let half = dt.with_value(dt.value() / 2.0);
+        if session.restore(state).is_err() || session.set_timestep(half).is_err() {
+            return false;
+        }
+        self.recoveries += 1;
+        self.recorder.clear();
+        self.recorder.record(session.simulation());
+        self.emit(Event::Rewound {
+            step: from,
+            time_tau: session.simulation().time(),
+        });
+        self.emit(Event::SetupChanged(Box::new(session.setup().clone())));
+        self.emit(Event::Recovered {
+            alarm: Box::new(alarm.clone()),
+            resumed_from_step: from,
+            timestep: half,
+        });
+        self.send_snapshots();
+        true
     }
 
     /// Tells the window which snapshots are held.
@@ -338,6 +372,9 @@ impl Engine {
             self.emit(Event::Sample(s));
         }
         if let Some(a) = out.alarm {
+            if session.setup().recover && self.recoveries < MAX_RECOVERIES && self.recover(session, &a) {
+                return;
+            }
             self.running = false;
             self.last_alarm = Some(a.clone());
             self.emit(Event::Alarm(a));

@@ -137,6 +137,17 @@ pub fn reduce(view: &mut RunView, event: Event) -> Echo {
             view.status.alarm = Some(a);
             view.recording = None;
         }
+        Event::Recovered {
+            alarm,
+            resumed_from_step,
+            timestep,
+        } => view.status.info(format!(
+            "Recovered: {} at step {}; back to step {resumed_from_step} with the timestep halved to {} {}, running on.",
+            alarm.kind.name(),
+            alarm.step,
+            timestep.value(),
+            timestep.symbol()
+        )),
         Event::Snapshots { marks, bytes } => {
             view.snapshots = marks;
             view.snapshot_bytes = bytes;
