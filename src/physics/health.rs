@@ -253,7 +253,10 @@ mod tests {
     use super::*;
     use crate::physics::system::kinetic_energy;
 
-    fn atoms(n: usize) -> (Vec<[f64; 3]>, Vec<[f64; 3]>, Vec<[f64; 3]>, Vec<u8>) {
+    type Arrays = (Vec<[f64; 3]>, Vec<[f64; 3]>, Vec<[f64; 3]>, Vec<u8>);
+
+    /// Positions, velocities, forces and types of `n` made-up atoms.
+    fn atoms(n: usize) -> Arrays {
         let x = (0..n).map(|i| [i as f64 * 0.1, 1.0, 2.0]).collect();
         let v = (0..n)
             .map(|i| [((i * 7) % 13) as f64 * 0.1 - 0.6, 0.2, -0.1])

@@ -17,6 +17,10 @@ const FOCUS_DISTANCE: f32 = 0.9;
 /// Size of the atoms outside an alarm's focus, as a fraction of their own.
 const FADED_SIZE: f32 = 0.35;
 
+/// What a fill of the vertex buffer depends on: settings, frame step, atom count, view size in
+/// pixels and the focus (its alarm's step).
+type FillKey = (ViewSettings, u64, usize, [u32; 2], Option<u64>);
+
 /// 3D box or flat slab.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum ViewMode {
@@ -85,7 +89,7 @@ pub struct ParticleView {
     renderer: SphereRenderer,
     /// Settings, frame step, atom count, view size and focus (its alarm's step) the vertex
     /// buffer was last filled for.
-    filled_for: Option<(ViewSettings, u64, usize, [u32; 2], Option<u64>)>,
+    filled_for: Option<FillKey>,
     culler: Culler,
     /// Atoms the culler kept in the last fill, nearest first.
     kept: Vec<u32>,
