@@ -153,3 +153,21 @@ fn a_restored_snapshot_is_the_exact_state_and_runs_on_as_before() {
         "the same 25 steps again, bit for bit"
     );
 }
+
+#[test]
+fn the_bundled_blow_up_is_caught_as_a_jump_of_a_pair_before_anything_overflows() {
+    let path = concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/assets/krypton-timestep-too-long.ron"
+    );
+    let mut s = Session::new(Setup::load(std::path::Path::new(path)).unwrap()).unwrap();
+    for _ in 0..200 {
+        if let Some(alarm) = s.step().alarm {
+            assert_eq!(alarm.kind, AlarmKind::Jump, "{}", alarm.describe());
+            assert!(all_finite(&s));
+            assert!(alarm.atoms.len() >= 2, "{}", alarm.describe());
+            return;
+        }
+    }
+    panic!("the bundled blow-up raised no alarm in 200 steps");
+}
