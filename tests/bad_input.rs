@@ -450,9 +450,27 @@ fn blow_up_exits_1_naming_step_and_atoms() {
         .unwrap_or_else(|| panic!("no atoms in: {stderr}"));
     let atoms: Vec<usize> = atoms.split(", ").map(|a| a.parse().unwrap()).collect();
     assert!(!atoms.is_empty() && atoms.iter().all(|&a| a < 500), "{stderr}");
-    // A failed run leaves no checkpoint or summary that could be mistaken for a finished one.
+    // A stopped run leaves no checkpoint that could be mistaken for a finished one; its summary
+    // says why it stopped, with the same step and atoms, caught before any value overflowed.
     assert!(!out.join("final.checkpoint").exists());
-    assert!(!out.join("summary.json").exists());
+    let summary: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("summary.json")).unwrap()).unwrap();
+    let alarm = &summary["alarm"];
+    assert_eq!(alarm["step"].as_u64(), Some(step), "{alarm}");
+    let kind = alarm["kind"].as_str().unwrap();
+    assert!(["jump", "energy_jump", "overlap"].contains(&kind), "{alarm}");
+    assert!(
+        stderr.contains(&format!("alarm {kind} at step {step}")),
+        "{stderr}"
+    );
+    let listed: Vec<usize> = alarm["atoms"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|a| a.as_u64().unwrap() as usize)
+        .collect();
+    assert_eq!(listed, atoms, "{alarm}");
+    assert!(!alarm["detail"].as_str().unwrap().is_empty());
     let _ = std::fs::remove_dir_all(&dir);
 }
 

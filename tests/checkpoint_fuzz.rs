@@ -19,7 +19,7 @@
 //! positions and velocities (f64 × 3N each), list reference (f32 × 3N), FNV-1a 64 checksum of
 //! everything before it, all little-endian.
 
-use noblescope::engine::Session;
+use noblescope::engine::{AlarmKind, Session};
 use noblescope::io::Setup;
 use noblescope::io::checkpoint::Checkpoint;
 use proptest::prelude::*;
@@ -177,10 +177,12 @@ fn check(bytes: &[u8]) -> Result<(), TestCaseError> {
         o.kinetic.is_finite() && o.potential.is_finite() && o.pressure.is_finite() && o.drift.is_finite(),
         "an accepted checkpoint gives a non-finite state: {o:?}"
     );
+    // The drift reference is the checkpoint's own (any finite value is accepted), so an altered
+    // one may be reported as drift: that is the watchdog comparing with it, not a broken state.
     for _ in 0..3 {
         let out = s.step();
         prop_assert!(
-            out.alarm.is_none(),
+            out.alarm.as_ref().is_none_or(|a| a.kind == AlarmKind::Drift),
             "an accepted checkpoint raises an alarm at once: {:?}",
             out.alarm
         );

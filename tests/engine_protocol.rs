@@ -34,6 +34,8 @@ fn small(steps: u64, sample_every: u64) -> Setup {
         speeds_every: None,
         temperature_ramp: None,
         precision_targets: Vec::new(),
+        recover: false,
+        start: Default::default(),
     }
 }
 

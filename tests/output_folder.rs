@@ -104,15 +104,14 @@ fn an_overwriting_run_that_blows_up_leaves_only_its_own_log() {
     let o = run(&bad, &out, &["--overwrite"]);
     let stderr = String::from_utf8_lossy(&o.stderr);
     assert_eq!(o.status.code(), Some(1), "{stderr}");
-    assert!(
-        stderr.contains("holds the energy log up to the blow-up"),
-        "{stderr}"
-    );
+    assert!(stderr.contains("holds the run up to the alarm"), "{stderr}");
     assert_eq!(
         names(&out),
-        ["energy.csv"],
-        "the earlier run's summary and checkpoint are gone"
+        ["alarm.xyz", "energy.csv", "summary.json"],
+        "the earlier run's checkpoint is gone; the summary is the stopped run's"
     );
+    let summary = std::fs::read_to_string(out.join("summary.json")).unwrap();
+    assert!(summary.contains("\"alarm\""), "{summary}");
     let log = std::fs::read_to_string(out.join("energy.csv")).unwrap();
     assert!(
         log.lines().count() < 12,

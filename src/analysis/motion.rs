@@ -62,6 +62,7 @@ impl BlockSums {
     }
 }
 
+#[derive(Clone)]
 struct Origin {
     sample: u64,
     positions: Vec<[f64; 3]>,
@@ -78,6 +79,7 @@ pub struct LagPoint {
 
 /// The accumulating correlator of the self motion: mean squared displacement and velocity
 /// autocorrelation per species, sampled at a fixed interval.
+#[derive(Clone)]
 pub struct SelfMotion {
     schedule: LagSchedule,
     lags: Vec<u64>,

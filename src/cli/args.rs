@@ -33,6 +33,10 @@ pub struct RunFlags {
     /// Quantities: temperature, pressure, potential_energy, total_energy, conserved_energy.
     #[arg(long = "until-stderr", value_name = "QUANTITY=STDERR", value_delimiter = ',')]
     pub until_stderr: Vec<String>,
+    /// On a watchdog alarm go back to the last healthy snapshot with half the timestep, at
+    /// most three times (each recovery is listed in summary.json).
+    #[arg(long)]
+    pub recover: bool,
 }
 
 // What `sweep` can do besides running a sweep file.
@@ -142,6 +146,9 @@ pub enum Cmd {
         /// samples (default 1000000), on one core.
         #[arg(long, value_name = "SAMPLES", num_args = 0..=1, default_missing_value = "1000000")]
         statistics: Option<usize>,
+        /// Also time watched against plain steps, interleaved: the per-step watchdog's cost.
+        #[arg(long)]
+        watchdog: bool,
     },
     /// Run a sweep of state points (one folder and one run per point), on this machine or as a
     /// Slurm job array; `sweep collect DIR` gathers the results into sweep.csv and sweep.json.

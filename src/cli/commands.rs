@@ -122,12 +122,13 @@ pub fn run(cmd: Cmd) -> Result<Next, CliError> {
             json,
             stages,
             statistics,
+            watchdog,
         } => {
             set_threads(threads)?;
             if let Some(n) = statistics {
                 bench_statistics(n)?;
             }
-            bench(&atoms, steps, warmup, json.as_deref(), stages)?;
+            bench(&atoms, steps, warmup, json.as_deref(), stages, watchdog)?;
         }
         Cmd::Sweep {
             action,
@@ -270,6 +271,7 @@ fn run_to_end(
         quiet: run.quiet,
         overwrite: run.overwrite,
         interrupt: Some(interrupt),
+        recover: run.recover,
     };
     let summary = headless::run(session, fresh, &opts)?;
     if !run.quiet {
@@ -335,6 +337,7 @@ fn bench(
     warmup: u64,
     json: Option<&Path>,
     stages: bool,
+    watchdog: bool,
 ) -> Result<(), CliError> {
     let mut sorted = atoms.to_vec();
     sorted.sort_unstable();
@@ -354,6 +357,11 @@ fn bench(
     if stages {
         for &a in atoms {
             output::bench_stages(&bench::measure_stages(a, steps));
+        }
+    }
+    if watchdog {
+        for &a in atoms {
+            output::bench_watchdog(&bench::measure_watchdog(a, steps));
         }
     }
     if let Some(path) = json {

@@ -1,6 +1,6 @@
 //! What the command line prints: the run report, the tuning tables and the bench table.
 
-use noblescope::engine::bench::{BenchResult, StageReport};
+use noblescope::engine::bench::{BenchResult, StageReport, WatchdogCost};
 use noblescope::engine::bench_statistics::StatisticsBench;
 use noblescope::engine::tuning::{FLUCTUATION_LIMIT, TuneInput, TuningReport};
 use noblescope::io::Setup;
@@ -177,6 +177,21 @@ pub fn bench_scaling(results: &[BenchResult]) {
             last.nanoseconds_per_atom_step / first.nanoseconds_per_atom_step
         );
     }
+}
+
+/// What watching every step costs at one size (`bench --watchdog`).
+pub fn bench_watchdog(c: &WatchdogCost) {
+    println!(
+        "watchdog at {} atoms, {} steps of each kind alternating: drift + kicks {:.4} ms/step watched, {:.4} plain; check {:.4} ms/step; whole step {:.3} ms plain, {:.3} watched; cost {:.2} % of a step",
+        c.atoms,
+        c.steps,
+        c.watched_stage_seconds * 1e3,
+        c.plain_stage_seconds * 1e3,
+        c.check_seconds * 1e3,
+        c.plain_step_seconds * 1e3,
+        c.watched_step_seconds * 1e3,
+        c.percent()
+    );
 }
 
 /// The stage times of one size (`bench --stages`): one line per stage that ran, then the whole

@@ -26,6 +26,7 @@ pub struct Cadence {
 }
 
 /// The analyses of a run.
+#[derive(Clone)]
 pub struct Analyses {
     cadence: Cadence,
     pub rdf: Option<RadialDistribution>,

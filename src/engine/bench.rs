@@ -1,6 +1,7 @@
 //! The standard benchmark: reduced LJ liquid, ρ* = 0.8442, T* = 1.44 start, r_c = 2.5 σ,
 //! skin 0.3 σ, truncated and shifted, NVE, dt* = 0.005.
 
+use super::watchdog::Watchdog;
 use crate::physics::{PotentialMode, Simulation, SimulationSpec, Species, Stage, StageTimes, Thermostat};
 use serde::Serialize;
 use std::time::Instant;
@@ -121,5 +122,73 @@ pub fn measure_stages(atoms: usize, steps: u64) -> StageReport {
         list_builds: sim.list_builds() - builds0,
         pairs_per_atom: sim.neighbour_list().pairs() as f64 / atoms as f64,
         times: *sim.stage_times(),
+    }
+}
+
+/// What the per-step watchdog costs (see [`measure_watchdog`]).
+#[derive(Clone, Debug, Serialize)]
+pub struct WatchdogCost {
+    pub atoms: usize,
+    /// Steps timed of each kind.
+    pub steps: u64,
+    /// Seconds per step in the drift and kick stages, watched.
+    pub watched_stage_seconds: f64,
+    /// Seconds per step in the same stages, plain.
+    pub plain_stage_seconds: f64,
+    /// Seconds per step in [`Watchdog::check`].
+    pub check_seconds: f64,
+    /// Seconds per whole step, plain.
+    pub plain_step_seconds: f64,
+    /// Seconds per whole step, watched and checked.
+    pub watched_step_seconds: f64,
+}
+
+impl WatchdogCost {
+    /// What watching adds to a step: the extra time of the watched stages and the check, as a
+    /// percentage of a plain step.
+    pub fn percent(&self) -> f64 {
+        100.0 * (self.watched_stage_seconds - self.plain_stage_seconds + self.check_seconds)
+            / self.plain_step_seconds
+    }
+}
+
+/// Times `steps` watched and `steps` plain steps of the melted standard liquid on one
+/// simulation, alternating step by step (the two kinds give the same trajectory to the bit),
+/// so both see the same machine and the same list builds. The watchdog touches only the drift
+/// and kick stages, and those are timed by the stage clock, which separates its cost from the
+/// machine's drift in speed far better than whole steps would.
+pub fn measure_watchdog(atoms: usize, steps: u64) -> WatchdogCost {
+    let mut sim = Simulation::new(standard_liquid(atoms)).expect("the benchmark spec is valid");
+    let mut dog = Watchdog::new(&mut sim);
+    sim.run(STAGE_WARMUP).expect("the benchmark liquid is stable");
+    sim.time_stages(true);
+    let (mut stage, mut whole, mut check) = ([0.0; 2], [0.0; 2], 0.0);
+    for i in 0..2 * steps {
+        let on = i % 2 == 0;
+        sim.watch_atoms(on);
+        sim.reset_stage_times();
+        sim.step().expect("the benchmark liquid is stable");
+        let t = *sim.stage_times();
+        let k = on as usize;
+        stage[k] += t.drift.seconds + t.kick.seconds;
+        whole[k] += t.step_seconds;
+        if on {
+            let c = Instant::now();
+            let alarm = dog.check(&sim);
+            check += c.elapsed().as_secs_f64();
+            assert!(alarm.is_none(), "the benchmark liquid raised {alarm:?}");
+        }
+    }
+    sim.time_stages(false);
+    sim.watch_atoms(true);
+    let per = |s: f64| s / steps.max(1) as f64;
+    WatchdogCost {
+        atoms,
+        steps,
+        watched_stage_seconds: per(stage[1]),
+        plain_stage_seconds: per(stage[0]),
+        check_seconds: per(check),
+        plain_step_seconds: per(whole[0]),
+        watched_step_seconds: per(whole[1] + check),
     }
 }

@@ -12,6 +12,8 @@ use std::sync::atomic::{AtomicBool, Ordering};
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct Frame {
     pub step: u64,
+    /// Simulated time, τ.
+    pub time_tau: f64,
     /// Box edge in σ.
     pub box_length: f32,
     /// Positions folded into [0, L)³, in σ.
@@ -33,6 +35,7 @@ impl Frame {
         let s = sim.system();
         let l = s.box_length;
         self.step = sim.step_count();
+        self.time_tau = sim.time();
         self.box_length = l as f32;
         self.positions.clear();
         self.positions.extend(s.positions.iter().map(|p| {
@@ -60,6 +63,11 @@ impl Frame {
     /// Number of atoms.
     pub fn len(&self) -> usize {
         self.positions.len()
+    }
+
+    /// Heap bytes a frame of `atoms` atoms holds (positions, types, kinetic energy, speed).
+    pub fn bytes_for(atoms: usize) -> usize {
+        atoms * (12 + 1 + 4 + 4) + 128
     }
 
     /// Whether the frame holds no atoms.

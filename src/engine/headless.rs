@@ -2,6 +2,7 @@
 //! trajectory written to an output folder.
 
 use super::analyses::{Analyses, Cadence};
+use super::recovery::{MAX_RECOVERIES, Outputs, SNAPSHOT_EVERY, Snapshot, alarm_summary, halve_timestep};
 use super::session::Session;
 use super::watchdog::Alarm;
 use crate::analysis::StartChoice;
@@ -10,6 +11,7 @@ use crate::analysis::precision;
 use crate::io::analysis_files::{analysis_files, species_labels};
 use crate::io::energy_log::EnergyLog;
 use crate::io::run_folder::{self, FolderError, StagedRun};
+use crate::io::setup::Setup;
 use crate::io::summary::{RunFacts, StopReason, Summary};
 use crate::io::trajectory;
 use crate::physics::PotentialMode;
@@ -35,6 +37,9 @@ pub struct HeadlessOptions {
     /// Set from outside (Ctrl-C) to stop after the present step; the run then ends as if it
     /// had reached its steps, with `stopped_because: "interrupted"`.
     pub interrupt: Option<Arc<AtomicBool>>,
+    /// On an alarm go back to the last healthy snapshot with half the timestep (at most
+    /// [`MAX_RECOVERIES`] times); also on when the setup says `recover: true`.
+    pub recover: bool,
 }
 
 /// Why a headless run stopped early.
@@ -49,7 +54,7 @@ pub enum RunError {
 }
 
 /// Files a run writes into its output folder.
-pub const OUTPUT_FILES: [&str; 8] = [
+pub const OUTPUT_FILES: [&str; 9] = [
     "energy.csv",
     "summary.json",
     "final.checkpoint",
@@ -58,6 +63,7 @@ pub const OUTPUT_FILES: [&str; 8] = [
     "msd.csv",
     "vacf.csv",
     "speeds.csv",
+    "alarm.xyz",
 ];
 
 /// Checks that `out` can take a run without destroying an earlier one or anything else (see
@@ -80,9 +86,11 @@ impl From<FolderError> for RunError {
 /// checkpoint (the starting sample was already logged by the earlier run).
 ///
 /// The files are written into a staging folder beside `opts.out` that takes its place when the
-/// run ends ([`StagedRun`]): finished, the folder holds the whole run; stopped by a blow-up, it
-/// holds the energy log (and trajectory) up to the alarm and the error says so; failed
-/// otherwise (a write error) or killed, the earlier contents of `opts.out` stay as they were.
+/// run ends ([`StagedRun`]): finished, the folder holds the whole run; stopped by the watchdog,
+/// it holds the energy log, the trajectory and the analyses up to the alarm, `summary.json`
+/// with the alarm, and `alarm.xyz` (the configuration at the alarm), but no checkpoint, and the
+/// error names the kind, the step and the atoms; failed otherwise (a write error) or killed,
+/// the earlier contents of `opts.out` stay as they were.
 pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<Summary, RunError> {
     let setup = session.setup().clone();
     let until = opts.until_step.unwrap_or(setup.steps);
@@ -129,8 +137,18 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
     let bar = progress_bar(until - start_step, opts.quiet);
     let started = Instant::now();
     let atoms = session.simulation().system().len();
+    let recover = opts.recover || setup.recover;
+    let mut recoveries = Vec::new();
+    let mut snapshot = None;
+    if recover {
+        let out = Outputs {
+            log: log.sink(),
+            trajectory: traj.as_mut(),
+            analyses: &analyses,
+        };
+        snapshot = Some(Snapshot::take(&session, out).map_err(|e| io_err("energy.csv", e))?);
+    }
     let mut failure = None;
-    let mut warnings = Vec::new();
     let mut stopped_because = StopReason::Steps;
     while session.simulation().step_count() < until {
         if opts.interrupt.as_ref().is_some_and(|f| f.load(Ordering::Relaxed)) {
@@ -146,15 +164,48 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
             stopped_because = StopReason::Precision;
         }
         if let Some(alarm) = out.alarm {
-            match alarm {
-                Alarm::NonFinite { step, atoms } => {
-                    failure = Some(format!(
-                        "non-finite energy at step {step}; atoms involved: {atoms:?}. Lower the timestep (now {:?}) or check the density.",
-                        setup.timestep
-                    ));
+            match snapshot
+                .as_ref()
+                .filter(|_: &&Snapshot| recoveries.len() < MAX_RECOVERIES)
+            {
+                Some(snap) => {
+                    // The session forgets the samples after the snapshot as it restores it.
+                    analyses = snap
+                        .restore(
+                            &mut session,
+                            Outputs {
+                                log: log.sink(),
+                                trajectory: traj.as_mut(),
+                                analyses: &analyses,
+                            },
+                        )
+                        .map_err(RunError::Failed)?;
+                    match halve_timestep(&mut session, &alarm, snap.step()) {
+                        Ok(r) => {
+                            if !opts.quiet {
+                                eprintln!(
+                                    "recovered: {} Back to step {}, timestep {} → {} {}.",
+                                    alarm.describe(),
+                                    r.resumed_from_step,
+                                    r.timestep_before,
+                                    r.timestep_after,
+                                    r.timestep_unit
+                                );
+                            }
+                            recoveries.push(r);
+                            stopped_because = StopReason::Steps;
+                            continue;
+                        }
+                        Err(why) => {
+                            failure = Some((alarm, Some(why)));
+                            break;
+                        }
+                    }
+                }
+                None => {
+                    failure = Some((alarm, None));
                     break;
                 }
-                other => warnings.push(other.describe()),
             }
         }
         let step = session.simulation().step_count();
@@ -166,12 +217,23 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
                 .map_err(|e| io_err("trajectory.xyz", e))?;
         }
         analyses.after_step(session.simulation());
+        if recover && step.is_multiple_of(SNAPSHOT_EVERY) {
+            let out = Outputs {
+                log: log.sink(),
+                trajectory: traj.as_mut(),
+                analyses: &analyses,
+            };
+            snapshot = Some(Snapshot::take(&session, out).map_err(|e| io_err("energy.csv", e))?);
+        }
         if step.is_multiple_of(64) {
             bar.set_position(step - start_step);
         }
         if stopped_because == StopReason::Precision {
             break;
         }
+    }
+    if failure.is_some() {
+        stopped_because = StopReason::Alarm;
     }
     bar.finish_and_clear();
     let wall = started.elapsed().as_secs_f64();
@@ -180,16 +242,6 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
         t.flush().map_err(|e| io_err("trajectory.xyz", e))?;
     }
     drop(traj);
-    if let Some(f) = failure {
-        let out = staged.commit()?;
-        return Err(RunError::Failed(format!(
-            "{f} {} holds the energy log up to the blow-up; no summary or checkpoint was written.",
-            out.display()
-        )));
-    }
-    for w in &warnings {
-        eprintln!("warning: {w}");
-    }
     let labels = species_labels(&session.simulation().system().kinds);
     let files = analysis_files(
         analyses.rdf.as_ref(),
@@ -204,10 +256,22 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
             .and_then(|mut f| f.write_all(text.as_bytes()))
             .map_err(|e| io_err(name, e))?;
     }
-    session
-        .checkpoint()
-        .save(&staged.path().join("final.checkpoint"))
-        .map_err(|e| RunError::Failed(e.to_string()))?;
+    if failure.is_some() {
+        let sim = session.simulation();
+        staged
+            .create("alarm.xyz")
+            .and_then(|f| {
+                let mut w = BufWriter::new(f);
+                trajectory::write_frame(&mut w, sim.system(), &units, sim.step_count(), sim.time())?;
+                w.flush()
+            })
+            .map_err(|e| io_err("alarm.xyz", e))?;
+    } else {
+        session
+            .checkpoint()
+            .save(&staged.path().join("final.checkpoint"))
+            .map_err(|e| RunError::Failed(e.to_string()))?;
+    }
     let sim = session.simulation();
     let evidence = session.evidence(StartChoice::Automatic);
     let spec = sim.spec();
@@ -255,12 +319,61 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
         &labels,
         units,
     );
+    summary.alarm = failure.as_ref().map(|(a, _)| alarm_summary(a));
+    summary.recoveries = recover.then_some(recoveries);
     staged
         .create("summary.json")
         .and_then(|mut f| f.write_all(summary.to_json().as_bytes()))
         .map_err(|e| io_err("summary.json", e))?;
-    staged.commit()?;
+    let out = staged.commit()?;
+    if let Some((alarm, why)) = failure {
+        return Err(RunError::Failed(alarm_message(
+            &alarm,
+            why,
+            session.setup(),
+            &out,
+        )));
+    }
     Ok(summary)
+}
+
+/// The message of a run the watchdog stopped: kind, step, atoms, what was seen, what to try,
+/// and what the folder holds.
+fn alarm_message(alarm: &Alarm, why_not_recovered: Option<String>, setup: &Setup, out: &Path) -> String {
+    let first = alarm
+        .atoms
+        .first()
+        .map(|a| {
+            let near: Vec<String> = a
+                .neighbours
+                .iter()
+                .map(|n| format!("{} at {:.3} σ", n.atom, n.distance))
+                .collect();
+            format!(
+                " Atom {} ({}) at ({:.3}, {:.3}, {:.3}) σ, nearest: {}.",
+                a.atom,
+                a.species.label(),
+                a.position[0],
+                a.position[1],
+                a.position[2],
+                near.join(", ")
+            )
+        })
+        .unwrap_or_default();
+    let not_recovered = why_not_recovered
+        .map(|w| format!(" Not recovered: {w}."))
+        .unwrap_or_default();
+    format!(
+        "watchdog alarm {} at step {}; atoms involved: {:?}. {}{first} {} (timestep now {} {}){not_recovered} {} holds the run up to the alarm (energy.csv, summary.json with the alarm, alarm.xyz); no checkpoint was written.",
+        alarm.kind.name(),
+        alarm.step,
+        alarm.atom_indices(),
+        alarm.detail,
+        alarm.kind.advice(),
+        setup.timestep.value(),
+        setup.timestep.symbol(),
+        out.display()
+    )
 }
 
 /// Bins of g(r) between 0 and the cutoff.

@@ -3,6 +3,7 @@
 //! Values crossing this boundary carry their unit in their name (`time_tau`, `duration_tau`)
 //! or in their type (the setup's [`Duration`] and [`Length`]). This file holds data types only.
 
+use super::flight_recorder::FlightRecord;
 use super::tuning::{TuneRequest, TuningReport};
 use super::watchdog::Alarm;
 use crate::analysis::Estimate;
@@ -44,6 +45,9 @@ pub enum Command {
     LoadCheckpoint(PathBuf),
     /// Go back to the newest safe snapshot before the last alarm.
     Rewind,
+    /// Go back to the held snapshot of this step (one of [`Event::Snapshots`]); its kind is
+    /// [`CommandKind::Rewind`].
+    RewindTo(u64),
     /// Scan the request's timesteps (τ) and cutoffs (σ) from the present state, each trial
     /// `duration_tau` long, on copies: the user's simulation is not advanced. The scan runs
     /// beside the engine loop and answers with [`Event::Tuned`]; one scan at a time.
@@ -160,6 +164,14 @@ pub struct Status {
     pub snapshots: usize,
 }
 
+/// One snapshot the rewind buffer holds: every one was taken after a step the watchdog passed.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct SnapshotMark {
+    pub step: u64,
+    /// Simulated time, τ.
+    pub time_tau: f64,
+}
+
 /// What the engine tells the window.
 #[derive(Clone, Debug, PartialEq)]
 pub enum Event {
@@ -177,6 +189,18 @@ pub enum Event {
     Rejected { command: CommandKind, reason: String },
     /// The watchdog paused the run.
     Alarm(Alarm),
+    /// The flight recorder's frames up to the alarm just sent (the last is the alarm's state).
+    FlightRecord(Box<FlightRecord>),
+    /// A setup with `recover: true` met `alarm`: the engine went back to the snapshot of
+    /// `resumed_from_step`, halved the timestep to `timestep` and runs on (at most
+    /// [`crate::engine::recovery::MAX_RECOVERIES`] times per start).
+    Recovered {
+        alarm: Box<Alarm>,
+        resumed_from_step: u64,
+        timestep: Duration,
+    },
+    /// The snapshots the rewind buffer holds now, oldest first, and the memory they take.
+    Snapshots { marks: Vec<SnapshotMark>, bytes: usize },
     /// State went back to this step and simulated time (τ); later samples no longer hold.
     Rewound { step: u64, time_tau: f64 },
     /// A checkpoint was written.
@@ -296,7 +320,7 @@ impl Command {
             Command::SetThermostat { .. } => CommandKind::SetThermostat,
             Command::SaveCheckpoint(_) => CommandKind::SaveCheckpoint,
             Command::LoadCheckpoint(_) => CommandKind::LoadCheckpoint,
-            Command::Rewind => CommandKind::Rewind,
+            Command::Rewind | Command::RewindTo(_) => CommandKind::Rewind,
             Command::Tune(_) => CommandKind::Tune,
             Command::CancelTune => CommandKind::CancelTune,
             Command::WatchAnalyses(_) => CommandKind::WatchAnalyses,

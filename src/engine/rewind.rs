@@ -49,6 +49,22 @@ impl RewindBuffer {
         None
     }
 
+    /// The newest snapshot at or before `step` (exactly `step` when one is held there),
+    /// dropping every newer one.
+    pub fn rewind_to(&mut self, step: u64) -> Option<SimulationState> {
+        self.rewind_before(step + 1)
+    }
+
+    /// Step and time of each snapshot held, oldest first.
+    pub fn marks(&self) -> impl Iterator<Item = (u64, f64)> + '_ {
+        self.snapshots.iter().map(|s| (s.step, s.time))
+    }
+
+    /// Heap bytes the snapshots hold (as [`RewindBuffer::new`] budgets them).
+    pub fn bytes(&self) -> usize {
+        self.snapshots.iter().map(|s| 73 * s.positions.len() + 256).sum()
+    }
+
     /// Number of snapshots held.
     pub fn len(&self) -> usize {
         self.snapshots.len()

@@ -4,9 +4,11 @@
 //! (so no sample is ever lost) and frames through a one-slot [`FrameMailbox`]. The simulation
 //! never waits for drawing: it fills a frame only when the last one was taken.
 
+use super::flight_recorder::FlightRecorder;
 use super::frame::{Frame, FrameMailbox};
 use super::live_analyses::LiveAnalyses;
-use super::protocol::{Command, CommandKind, Event, Status};
+use super::protocol::{Command, CommandKind, Event, SnapshotMark, Status};
+use super::recovery::MAX_RECOVERIES;
 use super::rewind::RewindBuffer;
 use super::session::Session;
 use super::tuning::{self, TuneError, TuneRequest, TuneUnits, TuningReport};
@@ -149,6 +151,9 @@ struct Engine {
     wake: Option<Box<dyn Fn() + Send>>,
     running: bool,
     rewind: RewindBuffer,
+    recorder: FlightRecorder,
+    /// Recoveries since the last start (setups with `recover: true`).
+    recoveries: usize,
     last_alarm: Option<Alarm>,
     /// Steps and time since the last status, for the rates.
     rate_steps: u64,
@@ -216,6 +221,8 @@ impl Engine {
             wake,
             running: false,
             rewind: RewindBuffer::new(1, SNAPSHOT_EVERY),
+            recorder: FlightRecorder::default(),
+            recoveries: 0,
             last_alarm: None,
             rate_steps: 0,
             rate_since: Instant::now(),
@@ -270,6 +277,9 @@ impl Engine {
     fn start(&mut self, session: &Session) {
         self.rewind = RewindBuffer::new(session.simulation().system().len(), SNAPSHOT_EVERY);
         self.rewind.push(session.simulation().state());
+        self.recorder = FlightRecorder::new(session.simulation().system().len());
+        self.recorder.record(session.simulation());
+        self.recoveries = 0;
         self.last_alarm = None;
         self.stop_at_steps = session.simulation().step_count() < session.setup().steps;
         self.emit(Event::Started {
@@ -279,6 +289,7 @@ impl Engine {
         self.emit(Event::Sample(session.observe()));
         self.publish_frame(session, true);
         self.restart_analyses(session);
+        self.send_snapshots();
     }
 
     /// Builds the analyses afresh for `session` (a new run, or a change of timestep or
@@ -296,6 +307,47 @@ impl Engine {
             self.emit(Event::Analyses(Box::new(report)));
         }
         self.last_analyses = Instant::now();
+    }
+
+    /// Goes back to the newest snapshot before `alarm` with half the timestep, as a headless
+    /// `run --recover` does; returns whether it could.
+    fn recover(&mut self, session: &mut Session, alarm: &Alarm) -> bool {
+        let Some(state) = self.rewind.rewind_before(alarm.step) else {
+            return false;
+        };
+        let from = state.step;
+        let dt = session.setup().timestep;
+        let half = dt.with_value(dt.value() / 2.0);
+        if session.restore(state).is_err() || session.set_timestep(half).is_err() {
+            return false;
+        }
+        self.recoveries += 1;
+        self.recorder.clear();
+        self.recorder.record(session.simulation());
+        self.emit(Event::Rewound {
+            step: from,
+            time_tau: session.simulation().time(),
+        });
+        self.emit(Event::SetupChanged(Box::new(session.setup().clone())));
+        self.emit(Event::Recovered {
+            alarm: Box::new(alarm.clone()),
+            resumed_from_step: from,
+            timestep: half,
+        });
+        self.send_snapshots();
+        true
+    }
+
+    /// Tells the window which snapshots are held.
+    fn send_snapshots(&self) {
+        self.emit(Event::Snapshots {
+            marks: self
+                .rewind
+                .marks()
+                .map(|(step, time_tau)| SnapshotMark { step, time_tau })
+                .collect(),
+            bytes: self.rewind.bytes(),
+        });
     }
 
     fn run(mut self, setup: Setup) {
@@ -361,9 +413,14 @@ impl Engine {
             self.emit(Event::Sample(s));
         }
         if let Some(a) = out.alarm {
+            if session.setup().recover && self.recoveries < MAX_RECOVERIES && self.recover(session, &a) {
+                return;
+            }
             self.running = false;
             self.last_alarm = Some(a.clone());
             self.emit(Event::Alarm(a));
+            let record = self.recorder.take(session.simulation());
+            self.emit(Event::FlightRecord(Box::new(record)));
             self.send_status(session);
             return;
         }
@@ -371,8 +428,12 @@ impl Engine {
             a.after_step(session);
         }
         let step = session.simulation().step_count();
+        if FlightRecorder::due(step) {
+            self.recorder.record(session.simulation());
+        }
         if self.rewind.due(step) {
             self.rewind.push(session.simulation().state());
+            self.send_snapshots();
         }
         let steps = session.setup().steps;
         if self.stop_at_steps && step >= steps {
@@ -433,7 +494,7 @@ impl Engine {
 
     /// Refuses `doing` after a blow-up.
     fn check_not_blown_up(&self, doing: &'static str) -> Result<(), Refusal> {
-        if matches!(self.last_alarm, Some(Alarm::NonFinite { .. })) {
+        if self.last_alarm.as_ref().is_some_and(|a| a.kind.is_blow_up()) {
             Err(Refusal::BlewUp { doing })
         } else {
             Ok(())
@@ -539,7 +600,8 @@ impl Engine {
                     self.emit(Event::Saved(path));
                 })
             }
-            Command::Rewind => self.rewind(session),
+            Command::Rewind => self.rewind(session, None),
+            Command::RewindTo(step) => self.rewind(session, Some(step)),
             Command::CancelTune => {
                 if self.tune.is_some() {
                     self.cancel_tune();
@@ -563,16 +625,23 @@ impl Engine {
         true
     }
 
-    /// Goes back to the newest snapshot before the last alarm (or before the present step).
-    fn rewind(&mut self, session: &mut Session) -> Result<(), Refusal> {
+    /// Goes back to the snapshot of step `to`, or without one to the newest snapshot before
+    /// the last alarm (or before the present step).
+    fn rewind(&mut self, session: &mut Session, to: Option<u64>) -> Result<(), Refusal> {
         let before = self
             .last_alarm
             .as_ref()
             .map(|a| a.step())
             .unwrap_or(session.simulation().step_count() + 1);
-        let state = self.rewind.rewind_before(before).ok_or(Refusal::NoSnapshot)?;
-        let spec = session.simulation().spec().clone();
-        *session.simulation_mut() = crate::physics::Simulation::from_state(spec, state)?;
+        let state = match to {
+            Some(step) if self.rewind.marks().any(|(s, _)| s == step) => self.rewind.rewind_to(step),
+            Some(_) => None,
+            None => self.rewind.rewind_before(before),
+        }
+        .ok_or(Refusal::NoSnapshot)?;
+        session.restore(state)?;
+        self.recorder.clear();
+        self.recorder.record(session.simulation());
         self.running = false;
         self.last_alarm = None;
         self.emit(Event::Rewound {
@@ -586,6 +655,7 @@ impl Engine {
             a.reset(session.simulation().step_count());
         }
         self.send_analyses(session);
+        self.send_snapshots();
         Ok(())
     }
 

@@ -1,13 +1,16 @@
 //! A session: one simulation with its setup, sampling schedule and watchdog. The engine thread
 //! and the headless runner both drive a session, so they step and sample identically.
 
-use super::watchdog::Alarm;
-use super::watchdog::Watchdog;
+use super::watchdog::{Alarm, Watchdog, non_finite};
 use crate::analysis::precision::{self, PrecisionTarget, TargetProgress};
 use crate::analysis::{Evidence, SampleStore, StartChoice, analyse};
 use crate::io::checkpoint::Checkpoint;
-use crate::io::setup::{Duration, Ensemble, Length, Setup, SetupError, Temperature};
-use crate::physics::{Observables, PotentialMode, Simulation, Thermostat, UnitSystem};
+use crate::io::setup::{Duration, Ensemble, Length, Setup, SetupError, Start, Temperature};
+use crate::io::start_file;
+use crate::physics::{
+    Observables, PotentialMode, Simulation, SimulationState, SpecError, Thermostat, UnitSystem,
+};
+use std::path::Path;
 
 /// One simulation and what it was set up from.
 pub struct Session {
@@ -18,6 +21,8 @@ pub struct Session {
     samples: SampleStore,
     /// The setup's precision targets in reduced units.
     targets: Vec<PrecisionTarget>,
+    /// Whether the state the session started from (or was restored to) has been checked.
+    start_checked: bool,
 }
 
 /// What one step produced.
@@ -37,15 +42,29 @@ impl Session {
     pub fn new(setup: Setup) -> Result<Session, SetupError> {
         let spec = setup.resolve_for_this_machine()?;
         let targets = setup.precision_targets_reduced()?;
-        let sim = Simulation::new(spec)?;
+        let mut sim = match &setup.start {
+            Start::Lattice => Simulation::new(spec)?,
+            Start::File { path } => {
+                let units = setup.units();
+                let angstrom = if units.has_real_units() {
+                    units.sigma_angstrom()
+                } else {
+                    1.0
+                };
+                let (l, kinds, counts) = (spec.box_length(), spec.kinds.clone(), spec.counts.clone());
+                let c = start_file::read(Path::new(path), &kinds, &counts, l, angstrom)?;
+                Simulation::with_positions(spec, c.positions, c.types)?
+            }
+        };
         let mut samples = SampleStore::default();
         samples.push(&sim.observe());
         Ok(Session {
             setup,
+            watchdog: Watchdog::new(&mut sim),
             sim,
-            watchdog: Watchdog::default(),
             samples,
             targets,
+            start_checked: false,
         })
     }
 
@@ -55,7 +74,7 @@ impl Session {
         c.check()?;
         c.setup.check_memory_available()?;
         let targets = c.setup.precision_targets_reduced()?;
-        let sim = Simulation::from_state(c.spec, c.state)?;
+        let mut sim = Simulation::from_state(c.spec, c.state)?;
         // A version 2 checkpoint has no samples: the statistics start at its step.
         let samples = c.samples.unwrap_or_else(|| {
             let mut s = SampleStore::default();
@@ -64,10 +83,11 @@ impl Session {
         });
         Ok(Session {
             setup: c.setup,
+            watchdog: Watchdog::new(&mut sim),
             sim,
-            watchdog: Watchdog::default(),
             samples,
             targets,
+            start_checked: false,
         })
     }
 
@@ -81,9 +101,30 @@ impl Session {
         &self.sim
     }
 
-    /// Mutable simulation (rewind, tests).
+    /// Mutable simulation (tests). The next [`Session::step`] checks the state it finds first.
     pub fn simulation_mut(&mut self) -> &mut Simulation {
+        self.start_checked = false;
+        self.watchdog.forget();
         &mut self.sim
+    }
+
+    /// Goes back to `state` (a rewind): the spec in force stays, the watchdog starts afresh,
+    /// and the samples after the state's step are forgotten.
+    pub fn restore(&mut self, state: SimulationState) -> Result<(), SpecError> {
+        let spec = self.sim.spec().clone();
+        let step = state.step;
+        let mut sim = Simulation::from_state(spec, state)?;
+        sim.set_move_bound(self.watchdog.bounds.max_move);
+        self.sim = sim;
+        self.watchdog.forget();
+        self.start_checked = true;
+        self.samples.truncate_after(step);
+        Ok(())
+    }
+
+    /// The watchdog (its bounds).
+    pub fn watchdog(&self) -> &Watchdog {
+        &self.watchdog
     }
 
     /// Units of the reference species.
@@ -147,21 +188,34 @@ impl Session {
         self.sim.observe()
     }
 
-    /// Takes one step; samples and checks at multiples of `sample_every`. Under a
-    /// `temperature_ramp` the bath target is first set for the step about to be taken.
+    /// Takes one step, checks it with the watchdog and samples at multiples of `sample_every`.
+    /// Under a `temperature_ramp` the bath target is first set for the step about to be taken.
+    ///
+    /// The first call after the start (or after [`Session::simulation_mut`]) checks the state
+    /// it finds before stepping: a start configuration with overlapping atoms is stopped at its
+    /// own step, with no step taken, before the forces fling the atoms apart.
     pub fn step(&mut self) -> StepOutcome {
-        self.follow_ramp();
-        if let Err(b) = self.sim.step() {
-            return StepOutcome {
-                sample: None,
-                alarm: Some(Watchdog::blowup(&b)),
-                precision_met: None,
-            };
+        if !self.start_checked {
+            self.start_checked = true;
+            if let Some(a) = self.watchdog.check(&self.sim) {
+                return StepOutcome {
+                    alarm: Some(a),
+                    ..Default::default()
+                };
+            }
         }
-        let mut out = StepOutcome::default();
-        if self.sim.step_count().is_multiple_of(self.setup.sample_every) {
+        self.follow_ramp();
+        let stepped = self.sim.step();
+        let mut out = StepOutcome {
+            alarm: self.watchdog.check(&self.sim),
+            ..Default::default()
+        };
+        if stepped.is_err() && out.alarm.is_none() {
+            out.alarm = Some(non_finite(&self.sim));
+        }
+        let lost = out.alarm.as_ref().is_some_and(|a| a.kind.is_blow_up());
+        if !lost && self.sim.step_count().is_multiple_of(self.setup.sample_every) {
             let o = self.sim.observe();
-            out.alarm = self.watchdog.check(&self.sim, &o);
             self.samples.push(&o);
             out.sample = Some(o);
             if out.alarm.is_none()
@@ -226,6 +280,7 @@ impl Session {
         let spec = setup.resolve()?;
         self.sim
             .set_interaction(spec.cutoff, spec.skin, spec.potential, spec.tail_correction)?;
+        self.watchdog.forget();
         self.setup = setup;
         Ok(())
     }

@@ -48,6 +48,11 @@ impl<W: Write> EnergyLog<W> {
         writeln!(self.out)
     }
 
+    /// The sink, e.g. to flush it and cut it back (a recovering run going back to a snapshot).
+    pub fn sink(&mut self) -> &mut W {
+        &mut self.out
+    }
+
     /// Flushes and returns the sink.
     pub fn finish(mut self) -> std::io::Result<W> {
         self.out.flush()?;

@@ -14,6 +14,7 @@ pub mod run_folder;
 pub mod setup;
 pub mod slurm_script;
 pub mod speeds_csv;
+pub mod start_file;
 pub mod summary;
 pub mod sweep_collect;
 pub mod sweep_file;

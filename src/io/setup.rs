@@ -138,6 +138,17 @@ pub enum Ensemble {
     Nvt { thermostat: ThermostatChoice },
 }
 
+/// Where the atoms start.
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+pub enum Start {
+    /// On an fcc lattice filling the box (atoms of each species at random sites).
+    #[default]
+    Lattice,
+    /// At the positions of an XYZ file ([`crate::io::start_file`]); a relative path is taken
+    /// relative to the setup file.
+    File { path: String },
+}
+
 /// One run, as written in a setup file.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -198,6 +209,14 @@ pub struct Setup {
     /// (`steps` stays the upper limit); see [`crate::io::precision_setting`].
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub precision_targets: Vec<PrecisionSetting>,
+    /// Headless runs recover from watchdog alarms (as `run --recover`): back to the last
+    /// healthy snapshot with half the timestep, at most three times.
+    #[serde(default)]
+    pub recover: bool,
+    /// Where the atoms start: `Lattice` (the default) or `File(path: "start.xyz")`; velocities
+    /// are drawn from the temperature either way.
+    #[serde(default)]
+    pub start: Start,
 }
 
 fn is_cutoff_reach(r: &RdfReach) -> bool {
@@ -338,7 +357,13 @@ impl Setup {
                 ))
             })?;
         let text = String::from_utf8(bytes).map_err(|_| read("stream did not contain valid UTF-8".into()))?;
-        Setup::parse(&text, &file)
+        let mut setup = Setup::parse(&text, &file)?;
+        if let (Start::File { path: start }, Some(dir)) = (&mut setup.start, path.parent())
+            && Path::new(start.as_str()).is_relative()
+        {
+            *start = dir.join(start.as_str()).display().to_string();
+        }
+        Ok(setup)
     }
 
     /// The setup as RON text, in the same layout users write.
@@ -467,6 +492,11 @@ impl Setup {
     /// [`Setup::resolve_for_this_machine`] instead.
     pub fn resolve(&self) -> Result<SimulationSpec, SetupError> {
         self.check_species()?;
+        if let Start::File { path } = &self.start
+            && path.trim().is_empty()
+        {
+            return Err(SetupError::field("start.path", "\"\"", "the path of an XYZ file"));
+        }
         if !(2..=MAX_ATOMS).contains(&self.atoms) {
             return Err(SetupError::field(
                 "atoms",

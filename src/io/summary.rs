@@ -195,6 +195,35 @@ pub struct Summary {
     #[serde(skip_serializing_if = "Vec::is_empty")]
     pub speeds: Vec<SpeedsSummary>,
     pub caution: &'static str,
+    /// Set when the watchdog stopped the run; the averages then cover the run up to the alarm.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub alarm: Option<AlarmSummary>,
+    /// With `run --recover`: every recovery, oldest first (absent without `--recover`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub recoveries: Option<Vec<RecoverySummary>>,
+}
+
+/// The watchdog's alarm as `summary.json` holds it.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct AlarmSummary {
+    /// `non_finite`, `overlap`, `jump`, `energy_jump` or `drift`.
+    pub kind: String,
+    pub step: u64,
+    /// The atoms where the trouble started, ranked, as 0-based indices in the run's atom order.
+    pub atoms: Vec<usize>,
+    /// What was seen, with the numbers and bounds.
+    pub detail: String,
+}
+
+/// One recovery of `run --recover`: the alarm, the snapshot the run went back to and the
+/// timestep before and after (in the setup's unit).
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct RecoverySummary {
+    pub alarm: AlarmSummary,
+    pub resumed_from_step: u64,
+    pub timestep_before: f64,
+    pub timestep_after: f64,
+    pub timestep_unit: &'static str,
 }
 
 /// Inputs of a summary besides the samples.
@@ -324,6 +353,8 @@ impl Summary {
             self_diffusion: None,
             speeds: Vec::new(),
             caution: MODEL_CAUTION,
+            alarm: None,
+            recoveries: None,
         }
     }
 

@@ -2,6 +2,7 @@
 
 pub mod forces;
 pub mod geometry;
+pub mod health;
 pub mod lattice;
 pub mod lj_eos;
 pub mod neighbours;
@@ -17,6 +18,7 @@ pub mod system;
 pub mod thermostat;
 pub mod units;
 
+pub use health::StepHealth;
 pub use observables::Observables;
 pub use potential::PotentialMode;
 pub use simulation::{Blowup, Simulation, SimulationSpec, SimulationState, SpecError, StateError};

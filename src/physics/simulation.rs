@@ -9,6 +9,7 @@
 //! integrator; [`Simulation::time_stages`] times them.
 
 use super::forces::{self, ForceScratch, ForceSums};
+use super::health::{self, KickTally, StepHealth};
 use super::lattice;
 use super::neighbours::NeighbourList;
 use super::observables::Observables;
@@ -18,7 +19,6 @@ use super::stage_clock::{Stage, StageClock, StageTimes};
 use super::stages::{self, LangevinO, RescaleHalf};
 use super::system::System;
 use super::thermostat::Thermostat;
-use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 
 /// Everything that defines a run, in reduced units of the first species.
@@ -84,7 +84,8 @@ pub const BOX_LENGTH_TOLERANCE: f64 = 1e-9;
 pub struct Blowup {
     pub step: u64,
     pub reason: String,
-    /// Up to eight atoms involved (non-finite, or with the largest forces).
+    /// Up to eight atoms holding a non-finite value, in index order (none when only the
+    /// energy or virial overflowed).
     pub atoms: Vec<usize>,
 }
 
@@ -343,14 +344,57 @@ pub struct Simulation {
     tail_energy: f64,
     tail_pressure: f64,
     clock: StageClock,
+    /// What the last step (or the start) measured about its atoms.
+    health: StepHealth,
+    /// Atoms drifting further than this in a step are listed in [`StepHealth::movers`].
+    move_bound: f64,
+    /// Scratch of the watched kick, one entry per chunk of atoms.
+    kick_partials: Vec<KickTally>,
+    /// Whether the drift and the last kick watch the atoms (on; off only to measure the cost).
+    watching: bool,
 }
 
 impl Simulation {
     /// Builds the start configuration (fcc lattice, Maxwell–Boltzmann velocities) and forces.
     pub fn new(spec: SimulationSpec) -> Result<Self, SpecError> {
         spec.check()?;
+        let (positions, types) = lattice::fcc_start(&spec.counts, spec.box_length(), spec.seed);
+        Self::with_positions(spec, positions, types)
+    }
+
+    /// Starts from given positions (σ, in the box) and species indices (into `spec.kinds`),
+    /// with Maxwell–Boltzmann velocities as [`Simulation::new`] draws them. The counts of each
+    /// type must be the spec's, every position finite.
+    pub fn with_positions(
+        spec: SimulationSpec,
+        positions: Vec<[f64; 3]>,
+        types: Vec<u8>,
+    ) -> Result<Self, SpecError> {
+        spec.check()?;
+        let mut counts = vec![0usize; spec.kinds.len()];
+        for &t in &types {
+            if let Some(c) = counts.get_mut(t as usize) {
+                *c += 1;
+            }
+        }
+        if positions.len() != types.len()
+            || counts != spec.counts
+            || counts.iter().sum::<usize>() != types.len()
+        {
+            return Err(SpecError {
+                field: "start",
+                value: format!("{} positions, atoms per species {counts:?}", positions.len()),
+                allowed: format!("the spec's counts {:?}", spec.counts),
+            });
+        }
+        if let Some(i) = positions.iter().position(|p| !p.iter().all(|x| x.is_finite())) {
+            return Err(SpecError {
+                field: "start",
+                value: format!("position of atom {i}: {:?}", positions[i]),
+                allowed: "finite coordinates".into(),
+            });
+        }
         let l = spec.box_length();
-        let (positions, types) = lattice::fcc_start(&spec.counts, l, spec.seed);
         let masses = spec.masses();
         let velocities = lattice::maxwell_boltzmann(
             &masses,
@@ -373,6 +417,7 @@ impl Simulation {
         sim.build_list();
         sim.forces();
         sim.rebase_drift();
+        sim.remeasure();
         Ok(sim)
     }
 
@@ -406,6 +451,7 @@ impl Simulation {
         sim.drift_origin = state.drift_origin;
         sim.drift_scale = state.drift_scale;
         sim.forces();
+        sim.remeasure();
         Ok(sim)
     }
 
@@ -427,6 +473,10 @@ impl Simulation {
             tail_energy: 0.0,
             tail_pressure: 0.0,
             clock: StageClock::default(),
+            health: StepHealth::default(),
+            move_bound: f64::INFINITY,
+            kick_partials: Vec::new(),
+            watching: true,
         };
         sim.update_tails();
         sim
@@ -564,6 +614,7 @@ impl Simulation {
         self.update_tails();
         self.forces();
         self.rebase_drift();
+        self.remeasure();
         Ok(())
     }
 
@@ -571,6 +622,50 @@ impl Simulation {
     pub fn refresh(&mut self) {
         self.build_list();
         self.forces();
+        self.remeasure();
+    }
+
+    /// What the last step measured about its atoms (after [`Simulation::new`],
+    /// [`Simulation::from_state`] or a live change: the present state, with no move).
+    pub fn health(&self) -> &StepHealth {
+        &self.health
+    }
+
+    /// Atoms that drift further than `bound` (σ) in one step are listed in the step's
+    /// [`StepHealth::movers`] (infinite at the start: none are). Changes no result.
+    pub fn set_move_bound(&mut self, bound: f64) {
+        self.move_bound = bound;
+    }
+
+    /// Switches the watched stages off (or on again), only to measure what watching costs
+    /// (`noblescope bench`): while off, [`Simulation::health`] keeps only the energies and the
+    /// drift. Positions and velocities come out the same to the bit either way.
+    pub fn watch_atoms(&mut self, on: bool) {
+        self.watching = on;
+    }
+
+    /// Measures the present state into [`Simulation::health`] (no move).
+    fn remeasure(&mut self) {
+        let s = &self.system;
+        let t = health::measure(&s.positions, &s.velocities, &s.forces, &s.types, &s.masses);
+        self.health = StepHealth {
+            step: self.step,
+            max_force: t.max_force2.sqrt(),
+            kinetic: t.kinetic,
+            non_finite: t.non_finite,
+            ..StepHealth::default()
+        };
+        self.finish_health();
+    }
+
+    /// Energies and drift of [`Simulation::health`] from its kinetic energy and the forces' sums.
+    fn finish_health(&mut self) {
+        let h = &mut self.health;
+        h.step = self.step;
+        h.potential = self.sums.potential + self.tail_energy * self.system.len() as f64;
+        h.conserved = h.kinetic + h.potential - self.heat;
+        h.drift = (h.conserved - self.drift_origin) / self.drift_scale;
+        h.non_finite |= !(h.potential.is_finite() && self.sums.virial.is_finite());
     }
 
     /// Switches the per-stage timers on or off (off at the start). While off they cost a
@@ -601,12 +696,15 @@ impl Simulation {
     pub fn step(&mut self) -> Result<(), Blowup> {
         let start = self.clock.step_started();
         let dt = self.spec.timestep;
+        self.health.max_move = 0.0;
+        self.health.non_finite = false;
+        self.health.movers.clear();
         match self.spec.thermostat {
             Thermostat::None => self.velocity_verlet(dt),
             Thermostat::StochasticRescale { target, tau } => {
                 self.rescale_half(target, tau, 0.5 * dt, 0);
                 self.velocity_verlet(dt);
-                self.rescale_half(target, tau, 0.5 * dt, 1);
+                self.health.kinetic = self.rescale_half(target, tau, 0.5 * dt, 1);
             }
             Thermostat::Langevin { target, gamma } => {
                 self.kick(0.5 * dt);
@@ -615,11 +713,12 @@ impl Simulation {
                 self.drift(0.5 * dt);
                 self.rebuild_if_needed();
                 self.forces();
-                self.kick(0.5 * dt);
+                self.last_kick(0.5 * dt);
             }
         }
         self.step += 1;
         self.time += dt;
+        self.finish_health();
         let checked = self.check_finite();
         self.clock.step_ended(start);
         checked
@@ -639,7 +738,7 @@ impl Simulation {
         self.drift(dt);
         self.rebuild_if_needed();
         self.forces();
-        self.kick(0.5 * dt);
+        self.last_kick(0.5 * dt);
     }
 
     // The stages, each timed by the stage clock when it is on.
@@ -652,11 +751,42 @@ impl Simulation {
         });
     }
 
-    /// A: x ← x + h v.
+    /// The step's last B, watched: also the kinetic energy, the largest force and whether a
+    /// velocity or force is not finite, into [`Simulation::health`].
+    fn last_kick(&mut self, h: f64) {
+        if !self.watching {
+            return self.kick(h);
+        }
+        let s = &mut self.system;
+        let partials = &mut self.kick_partials;
+        let t = self.clock.time(Stage::Kick, || {
+            health::kick_watched(&mut s.velocities, &s.forces, &s.types, &s.masses, h, partials)
+        });
+        self.health.kinetic = t.kinetic;
+        self.health.max_force = t.max_force2.sqrt();
+        self.health.non_finite |= t.non_finite;
+    }
+
+    /// A: x ← x + h v, watched: the largest move (over a whole step at the velocity drifted
+    /// with) and whether a position or velocity is not finite, into [`Simulation::health`]; the
+    /// atoms beyond the move bound are listed only when some atom crossed it.
     fn drift(&mut self, h: f64) {
         let s = &mut self.system;
-        self.clock
-            .time(Stage::Drift, || stages::drift(&mut s.positions, &s.velocities, h));
+        if !self.watching {
+            return self
+                .clock
+                .time(Stage::Drift, || stages::drift(&mut s.positions, &s.velocities, h));
+        }
+        let t = self.clock.time(Stage::Drift, || {
+            health::drift_watched(&mut s.positions, &s.velocities, h)
+        });
+        let dt = self.spec.timestep;
+        let moved = dt * t.max_speed2.sqrt();
+        self.health.max_move = self.health.max_move.max(moved);
+        self.health.non_finite |= t.non_finite;
+        if moved > self.move_bound {
+            health::collect_movers(&s.velocities, dt, self.move_bound, &mut self.health.movers);
+        }
     }
 
     /// The skin check, then a list build if it asks for one.
@@ -709,8 +839,9 @@ impl Simulation {
         });
     }
 
-    /// One stochastic rescaling half-step (`half` 0 before velocity Verlet, 1 after).
-    fn rescale_half(&mut self, target: f64, tau: f64, dt: f64, half: u64) {
+    /// One stochastic rescaling half-step (`half` 0 before velocity Verlet, 1 after); returns
+    /// the kinetic energy it scaled the atoms to.
+    fn rescale_half(&mut self, target: f64, tau: f64, dt: f64, half: u64) -> f64 {
         let r = RescaleHalf {
             dt,
             tau,
@@ -723,7 +854,7 @@ impl Simulation {
         let (s, heat) = (&mut self.system, &mut self.heat);
         self.clock.time(Stage::Rescale, || {
             stages::rescale_half(&mut s.velocities, &s.types, &s.masses, &r, heat)
-        });
+        })
     }
 
     fn check_finite(&self) -> Result<(), Blowup> {
@@ -731,7 +862,7 @@ impl Simulation {
             return Ok(());
         }
         let s = &self.system;
-        let mut atoms: Vec<usize> = (0..s.len())
+        let atoms: Vec<usize> = (0..s.len())
             .filter(|&i| {
                 !(s.positions[i]
                     .iter()
@@ -741,46 +872,11 @@ impl Simulation {
             })
             .take(8)
             .collect();
-        if atoms.is_empty() {
-            atoms = self.strongest_forces(8);
-        }
         Err(Blowup {
             step: self.step,
             reason: "potential energy or virial is not finite".into(),
             atoms,
         })
-    }
-
-    /// Indices of the `k` atoms with the largest force magnitude (finite ones first).
-    pub fn strongest_forces(&self, k: usize) -> Vec<usize> {
-        let f = &self.system.forces;
-        let mut idx: Vec<usize> = (0..f.len()).collect();
-        let mag = |i: usize| {
-            let m = f[i][0] * f[i][0] + f[i][1] * f[i][1] + f[i][2] * f[i][2];
-            if m.is_nan() { f64::INFINITY } else { m }
-        };
-        idx.sort_by(|&a, &b| mag(b).total_cmp(&mag(a)));
-        idx.truncate(k);
-        idx
-    }
-
-    /// Largest force magnitude on any atom.
-    pub fn max_force(&self) -> f64 {
-        self.system
-            .forces
-            .par_iter()
-            .map(|f| f[0] * f[0] + f[1] * f[1] + f[2] * f[2])
-            .reduce(
-                || 0.0,
-                |a, b| {
-                    if a.is_nan() || b.is_nan() {
-                        f64::NAN
-                    } else {
-                        a.max(b)
-                    }
-                },
-            )
-            .sqrt()
     }
 
     /// Potential energy per atom and pressure of the full, untruncated potential estimated

@@ -12,15 +12,39 @@ use super::system::kinetic_energy;
 use super::thermostat;
 use rayon::prelude::*;
 
+/// h/m and m of each type, divided once per kick instead of once per atom (the same
+/// division, so the same bits).
+pub struct KickFactors {
+    factors: [(f64, f64); 256],
+}
+
+impl KickFactors {
+    /// The factors of a kick of `h` for atoms of `masses` (at most 256 types).
+    pub fn new(masses: &[f64], h: f64) -> KickFactors {
+        let mut factors = [(0.0, 0.0); 256];
+        for (f, &m) in factors.iter_mut().zip(masses) {
+            *f = (h / m, m);
+        }
+        KickFactors { factors }
+    }
+
+    /// h/m and m of type `t`.
+    #[inline(always)]
+    pub fn get(&self, t: u8) -> (f64, f64) {
+        self.factors[t as usize]
+    }
+}
+
 /// B: v ← v + h F/m for every atom (`masses` per type, `types` per atom).
 pub fn kick(velocities: &mut [[f64; 3]], forces: &[[f64; 3]], types: &[u8], masses: &[f64], h: f64) {
+    let per_type = KickFactors::new(masses, h);
     velocities
         .par_iter_mut()
         .zip(forces.par_iter())
         .zip(types.par_iter())
         .with_min_len(ELEMENTWISE_TASK)
         .for_each(|((v, f), &t)| {
-            let a = h / masses[t as usize];
+            let a = per_type.get(t).0;
             v[0] += a * f[0];
             v[1] += a * f[1];
             v[2] += a * f[2];
@@ -90,17 +114,18 @@ pub struct RescaleHalf {
 }
 
 /// Draws a new kinetic energy ([`thermostat::rescaled_kinetic`]) and scales every velocity to
-/// it; adds the kinetic energy it changed to `heat`. Does nothing when the atoms are at rest.
+/// it; adds the kinetic energy it changed to `heat` and returns the new kinetic energy. Does
+/// nothing when the atoms are at rest.
 pub fn rescale_half(
     velocities: &mut [[f64; 3]],
     types: &[u8],
     masses: &[f64],
     r: &RescaleHalf,
     heat: &mut f64,
-) {
+) -> f64 {
     let k = kinetic_energy(velocities, types, masses);
     if k <= 0.0 {
-        return;
+        return k;
     }
     let mut rng = thermostat::rescale_stream(r.seed, r.step, r.half);
     let k_new =
@@ -115,4 +140,5 @@ pub fn rescale_half(
             }
         });
     *heat += k_new - k;
+    k_new
 }

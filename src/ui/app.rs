@@ -56,6 +56,8 @@ pub struct NoblescopeApp {
     pub(super) frames_drawn: u64,
     /// An open sweep's results (File → Open sweep folder…).
     pub(super) sweep: Option<SweepView>,
+    /// The alarm step the camera was last turned to (it turns once per alarm).
+    pub(super) focused_for: Option<u64>,
 }
 
 impl NoblescopeApp {
@@ -95,6 +97,7 @@ impl NoblescopeApp {
             pictures: PictureTaker::new(),
             dialog: files::Dialog::default(),
             frames_drawn: 0,
+            focused_for: None,
         }
     }
 
@@ -141,6 +144,28 @@ impl NoblescopeApp {
     /// Latest message for the user.
     pub fn message(&self) -> Option<&Message> {
         self.run.status.message.as_ref()
+    }
+
+    /// The watchdog's alarm shown in the banner, if any.
+    pub fn alarm(&self) -> Option<&crate::engine::Alarm> {
+        self.run.status.alarm.as_ref()
+    }
+
+    /// Step of the frame the particle view shows: a flight-recorder frame while an alarm is
+    /// shown, the live frame otherwise.
+    pub fn shown_frame_step(&self) -> u64 {
+        match (
+            &self.run.status.alarm,
+            super::alarm_view::scrubbed(self.run.recording.as_ref(), self.run.scrub),
+        ) {
+            (Some(_), Some(f)) => f.step,
+            _ => self.frame.step,
+        }
+    }
+
+    /// The particle view's settings (its camera).
+    pub fn view_settings(&self) -> &super::particle_view::ViewSettings {
+        &self.view.settings
     }
 
     /// Samples plotted since the last start.

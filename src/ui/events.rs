@@ -8,8 +8,8 @@ use super::status::StatusLine;
 use super::structure_panel::StructurePanel;
 use super::tuning_panel::TuningPanel;
 use super::unit_field::format_number;
-use crate::engine::Event;
 use crate::engine::{CommandKind, TuningReport};
+use crate::engine::{Event, FlightRecord, SnapshotMark};
 use crate::io::setup::{Ensemble, Setup};
 use crate::physics::UnitSystem;
 
@@ -29,6 +29,13 @@ pub struct RunView {
     pub atoms: usize,
     /// The structure and motion analyses as last reported.
     pub structure: StructurePanel,
+    /// The flight recorder's frames up to the last alarm.
+    pub recording: Option<FlightRecord>,
+    /// The recorded frame shown (an index into `recording`).
+    pub scrub: usize,
+    /// The snapshots the engine holds (the rewind timeline) and their memory.
+    pub snapshots: Vec<SnapshotMark>,
+    pub snapshot_bytes: usize,
 }
 
 /// What an event means for the rest of the window beyond the state it changed.
@@ -73,6 +80,10 @@ impl RunView {
             tuning: TuningPanel::for_setup(setup),
             atoms: 0,
             structure: StructurePanel::default(),
+            recording: None,
+            scrub: 0,
+            snapshots: Vec::new(),
+            snapshot_bytes: 0,
         }
     }
 
@@ -110,6 +121,7 @@ pub fn reduce(view: &mut RunView, event: Event) -> Echo {
             view.plots.restart(setup.units(), thermostat_target(&setup));
             view.structure.clear();
             view.status.alarm = None;
+            view.recording = None;
         }
         Event::SetupChanged(setup) => {
             view.adopt(&setup);
@@ -130,10 +142,33 @@ pub fn reduce(view: &mut RunView, event: Event) -> Echo {
             view.tuning.cancelled();
             view.status.info("Tuning scan stopped.");
         }
-        Event::Alarm(a) => view.status.alarm = Some(a),
+        Event::Alarm(a) => {
+            view.status.alarm = Some(a);
+            view.recording = None;
+        }
+        Event::Recovered {
+            alarm,
+            resumed_from_step,
+            timestep,
+        } => view.status.info(format!(
+            "Recovered: {} at step {}; back to step {resumed_from_step} with the timestep halved to {} {}, running on.",
+            alarm.kind.name(),
+            alarm.step,
+            timestep.value(),
+            timestep.symbol()
+        )),
+        Event::Snapshots { marks, bytes } => {
+            view.snapshots = marks;
+            view.snapshot_bytes = bytes;
+        }
+        Event::FlightRecord(r) => {
+            view.scrub = r.frames.len().saturating_sub(1);
+            view.recording = Some(*r);
+        }
         Event::Rewound { step, time_tau } => {
             view.plots.rewind_to(time_tau);
             view.status.alarm = None;
+            view.recording = None;
             view.status.info(format!(
                 "Rewound to step {step}; lower the timestep before running on."
             ));
@@ -154,9 +189,21 @@ pub fn reduce(view: &mut RunView, event: Event) -> Echo {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::engine::{Alarm, Status};
+    use crate::engine::{Alarm, AlarmKind, Status};
     use crate::io::setup::Duration;
     use crate::physics::{Observables, Species};
+
+    fn alarm(kind: AlarmKind, step: u64) -> Alarm {
+        Alarm {
+            kind,
+            step,
+            time: step as f64 * 0.005,
+            value: 0.1,
+            bound: 0.05,
+            atoms: Vec::new(),
+            detail: "seen".into(),
+        }
+    }
 
     fn argon() -> Setup {
         Setup::parse(include_str!("../../assets/argon-cold-trap.ron"), "argon").unwrap()
@@ -178,11 +225,7 @@ mod tests {
         let mut view = RunView::new(&old);
         let mut new = old.clone();
         new.atoms = 864;
-        view.status.alarm = Some(Alarm::Drift {
-            step: 3,
-            drift: 0.1,
-            limit: 0.01,
-        });
+        view.status.alarm = Some(alarm(AlarmKind::Drift, 3));
         started(&mut view, &new, 864);
         assert_eq!(view.running, new);
         assert_eq!(view.atoms, 864);
@@ -270,13 +313,7 @@ mod tests {
             reduce(&mut view, Event::Sample(o));
         }
         assert_eq!(view.plots.samples(), 3);
-        reduce(
-            &mut view,
-            Event::Alarm(Alarm::NonFinite {
-                step: 30,
-                atoms: vec![1],
-            }),
-        );
+        reduce(&mut view, Event::Alarm(alarm(AlarmKind::NonFinite, 30)));
         assert!(view.status.alarm.is_some());
         reduce(
             &mut view,

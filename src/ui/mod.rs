@@ -20,6 +20,7 @@
 //!   driven each frame by [`scripted`];
 //! - [`window`]: opening the native window.
 
+pub mod alarm_view;
 pub mod app;
 pub mod cull;
 pub mod events;
@@ -42,8 +43,9 @@ pub mod shortcuts;
 pub mod slab_view;
 pub mod start;
 pub mod status;
-pub mod sweep_view;
 pub mod structure_panel;
+pub mod sweep_view;
+pub mod timeline;
 pub mod tuning_panel;
 pub mod unit_field;
 pub mod watch;

@@ -80,6 +80,24 @@ pub const SERIES: [Color32; 6] = [
 ];
 /// Target lines in plots.
 pub const TARGET: Color32 = Color32::from_rgb(0xF0, 0xC8, 0x5A);
+/// Atoms an alarm names, and the plots' cursor while the flight recorder is scrubbed: a
+/// bright vermilion, far from every species colour in brightness as well as hue.
+pub const FOCUS: Color32 = Color32::from_rgb(0xFF, 0x4A, 0x1C);
+/// [`FOCUS`] as the sphere renderer takes colours (as [`species_rgb`] gives them).
+pub const FOCUS_RGB: [f32; 3] = [1.0, 0x4A as f32 / 255.0, 0x1C as f32 / 255.0];
+
+/// A colour three quarters of the way to the view's background, for atoms outside an alarm's
+/// focus.
+pub fn faded(c: [f32; 3]) -> [f32; 3] {
+    let b = VIEW_BACKGROUND;
+    let bg = [b.r() as f32 / 255.0, b.g() as f32 / 255.0, b.b() as f32 / 255.0];
+    [
+        0.25 * c[0] + 0.75 * bg[0],
+        0.25 * c[1] + 0.75 * bg[1],
+        0.25 * c[2] + 0.75 * bg[2],
+    ]
+}
+
 /// Alarm banner fill.
 pub const ALARM: Color32 = Color32::from_rgb(0x8C, 0x2F, 0x2A);
 /// Error text at a field.

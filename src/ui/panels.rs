@@ -2,12 +2,14 @@
 //! plots in the centre, and the overlays (help, leave question, drop hint); and the commands
 //! the form and the tuning panel ask for.
 
+use super::alarm_view::{self, AlarmAction, Focus};
 use super::app::NoblescopeApp;
 use super::help;
 use super::palette;
 use super::pending::Ask;
 use super::setup_form::{FormAction, SetupForm};
 use super::structure_panel::StructureAction;
+use super::timeline;
 use super::tuning_panel::TuningAction;
 use crate::engine::Command;
 use crate::io::summary::MODEL_CAUTION;
@@ -91,20 +93,54 @@ impl NoblescopeApp {
         egui::CentralPanel::default()
             .frame(bare(egui::Frame::central_panel(&style)))
             .show(ui, |ui| {
-                if self.run.status.alarm_banner(ui) {
-                    self.send(Command::Rewind);
+                let units = self.run.running.units();
+                if let Some(alarm) = self.run.status.alarm.clone() {
+                    let run = &mut self.run;
+                    match alarm_view::show(ui, &alarm, run.recording.as_ref(), &mut run.scrub, units) {
+                        AlarmAction::Rewind => self.send(Command::Rewind),
+                        AlarmAction::Dismiss => {
+                            self.run.status.alarm = None;
+                            self.run.recording = None;
+                        }
+                        AlarmAction::None => {}
+                    }
                 }
                 for note in self.run.running.cautions() {
                     ui.colored_label(palette::CAUTION_TEXT, format!("Note: {note}"));
                 }
+                let focus = self.run.status.alarm.as_ref().and_then(Focus::of);
+                if let Some(f) = &focus
+                    && self.focused_for != Some(f.step)
+                {
+                    self.focused_for = Some(f.step);
+                    self.view.look_at(f, self.frame.box_length);
+                }
+                let shown = match (
+                    &self.run.status.alarm,
+                    alarm_view::scrubbed(self.run.recording.as_ref(), self.run.scrub),
+                ) {
+                    (Some(_), Some(f)) => f,
+                    _ => &self.frame,
+                };
+                let cursor = self.run.status.alarm.as_ref().map(|_| shown.time_tau);
                 let h = ui.available_height();
                 let w = ui.available_width();
-                let units = self.run.running.units();
                 ui.allocate_ui(egui::vec2(w, (h * 0.56).max(200.0)), |ui| {
-                    self.view.show(ui, &self.frame, units)
+                    self.view.show(ui, shown, units, focus.as_ref())
                 });
                 ui.separator();
-                self.run.plots.show(ui, w);
+                let alarm_mark = self.run.status.alarm.as_ref().map(|a| (a.step, a.time));
+                let latest = self.run.status.status.time_tau;
+                let run = &self.run;
+                if let Some(step) =
+                    timeline::show(ui, &run.snapshots, run.snapshot_bytes, alarm_mark, latest, units)
+                {
+                    self.run.status.info(format!(
+                        "Going back to step {step}; change timestep, cutoff or bath in the setup form (Change live), then Run."
+                    ));
+                    self.send(Command::RewindTo(step));
+                }
+                self.run.plots.show(ui, w, cursor);
             });
         if self.structure_open {
             let mut open = true;

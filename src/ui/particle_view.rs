@@ -3,6 +3,7 @@
 //! one GL call; the vertex buffer is refilled in place only when a new frame arrives or the
 //! look changes.
 
+use super::alarm_view::Focus;
 use super::cull::{Culler, Projected};
 use super::gl_spheres::{FLOATS_PER_ATOM, SphereRenderer};
 use super::palette;
@@ -10,6 +11,15 @@ use super::slab_view::Slab;
 use crate::engine::Frame;
 use crate::physics::UnitSystem;
 use glam::{Mat4, Vec3, Vec4};
+
+/// Camera distance (in box edges) when the view turns to an alarm's atoms.
+const FOCUS_DISTANCE: f32 = 0.9;
+/// Size of the atoms outside an alarm's focus, as a fraction of their own.
+const FADED_SIZE: f32 = 0.35;
+
+/// What a fill of the vertex buffer depends on: settings, frame step, atom count, view size in
+/// pixels and the focus (its alarm's step).
+type FillKey = (ViewSettings, u64, usize, [u32; 2], Option<u64>);
 
 /// 3D box or flat slab.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
@@ -77,8 +87,9 @@ impl Default for ViewSettings {
 pub struct ParticleView {
     pub settings: ViewSettings,
     renderer: SphereRenderer,
-    /// Settings, frame step, atom count and view size the vertex buffer was last filled for.
-    filled_for: Option<(ViewSettings, u64, usize, [u32; 2])>,
+    /// Settings, frame step, atom count, view size and focus (its alarm's step) the vertex
+    /// buffer was last filled for.
+    filled_for: Option<FillKey>,
     culler: Culler,
     /// Atoms the culler kept in the last fill, nearest first.
     kept: Vec<u32>,
@@ -114,8 +125,20 @@ impl ParticleView {
         self.shown
     }
 
-    /// Draws the toolbar, the view and the legend.
-    pub fn show(&mut self, ui: &mut egui::Ui, frame: &Frame, units: UnitSystem) {
+    /// Turns the camera to `focus`: the 3D view centres on its first atom, closer in, and the
+    /// slab is moved through it.
+    pub fn look_at(&mut self, focus: &Focus, box_length: f32) {
+        let l = box_length.max(1e-3);
+        let c = focus.centre;
+        self.settings.orbit.pan = [c[0] / l - 0.5, c[1] / l - 0.5, c[2] / l - 0.5];
+        self.settings.orbit.distance = FOCUS_DISTANCE;
+        let (a, _, _) = self.settings.slab.axis.indices();
+        self.settings.slab.centre = (c[a] / l).clamp(0.0, 1.0);
+    }
+
+    /// Draws the toolbar, the view and the legend; with a focus, its atoms stand out and the
+    /// rest are faded and drawn small.
+    pub fn show(&mut self, ui: &mut egui::Ui, frame: &Frame, units: UnitSystem, focus: Option<&Focus>) {
         self.toolbar(ui, frame);
         let legend_h = 26.0;
         let avail = ui.available_size();
@@ -123,7 +146,7 @@ impl ParticleView {
         let (rect, response) = ui.allocate_exact_size(size, egui::Sense::click_and_drag());
         self.handle_input(ui, &response);
         let ppp = ui.ctx().pixels_per_point();
-        self.fill(frame, rect, ppp);
+        self.fill(frame, rect, ppp, focus);
         let painter = ui.painter_at(rect);
         if frame.is_empty() {
             painter.text(
@@ -249,7 +272,7 @@ impl ParticleView {
 
     /// Refills the vertex buffer if the frame or the look changed (no allocation once the
     /// buffers have grown to the atom count).
-    fn fill(&mut self, frame: &Frame, rect: egui::Rect, ppp: f32) {
+    fn fill(&mut self, frame: &Frame, rect: egui::Rect, ppp: f32, focus: Option<&Focus>) {
         let l = frame.box_length.max(1e-3);
         let (view, proj, ortho) = self.camera(rect, l);
         // The view in whole pixels, rounded as egui rounds the paint callback's viewport.
@@ -265,7 +288,7 @@ impl ParticleView {
         scene.proj = proj.to_cols_array();
         scene.pixels_per_unit = ppu;
         scene.orthographic = ortho;
-        let key = (self.settings, frame.step, frame.len(), px);
+        let key = (self.settings, frame.step, frame.len(), px, focus.map(|f| f.step));
         if self.filled_for == Some(key) {
             return;
         }
@@ -291,7 +314,27 @@ impl ParticleView {
                 ColourBy::Kinetic => palette::ramp(frame.kinetic[i] / scale),
             }
         };
-        let radius = |i: usize| frame.sigmas.get(frame.types[i] as usize).copied().unwrap_or(1.0) * size;
+        // With a focus: named atoms in the alarm colour, neighbours as they are, the rest
+        // faded and small, so the named ones show through from inside the box.
+        let role = |i: usize| -> u8 {
+            match focus {
+                None => 1,
+                Some(f) if f.atoms.contains(&i) => 2,
+                Some(f) if f.neighbours.binary_search(&i).is_ok() => 1,
+                Some(_) => 0,
+            }
+        };
+        let colour = |i: usize| -> [f32; 3] {
+            match role(i) {
+                2 => palette::FOCUS_RGB,
+                1 => colour(i),
+                _ => palette::faded(colour(i)),
+            }
+        };
+        let radius = |i: usize| {
+            let r = frame.sigmas.get(frame.types[i] as usize).copied().unwrap_or(1.0) * size;
+            if role(i) == 0 { r * FADED_SIZE } else { r }
+        };
         let mode = self.settings.mode;
         let slab = self.settings.slab;
         // Where atom i is drawn: its position (3D) or its slab coordinates (2D), if at all.

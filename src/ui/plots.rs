@@ -6,7 +6,7 @@
 use super::palette;
 use super::series::{EnvelopeSeries, ThinnedLog};
 use crate::physics::{Observables, UnitSystem};
-use egui_plot::{GridInput, GridMark, HLine, Legend, Line, Plot, PlotPoints};
+use egui_plot::{GridInput, GridMark, HLine, Legend, Line, Plot, PlotPoints, VLine};
 
 /// Grid marks at 1, 2 or 5 × 10ⁿ, about five labelled lines across the range, and no finer
 /// lines: the default powers-of-ten spacing leaves short plots with a single label, and every
@@ -206,8 +206,15 @@ impl Plots {
         self.units
     }
 
-    /// Draws the four plots in a 2×2 grid filling the available space.
-    pub fn show(&mut self, ui: &mut egui::Ui, width: f32) {
+    /// Draws the four plots in a 2×2 grid filling the available space; `cursor` (τ) marks the
+    /// time of the frame shown while the flight recorder is scrubbed.
+    pub fn show(&mut self, ui: &mut egui::Ui, width: f32, cursor: Option<f64>) {
+        let cursor = cursor.map(|t| t * self.time_factor());
+        let mark = |p: &mut egui_plot::PlotUi| {
+            if let Some(t) = cursor {
+                p.vline(VLine::new("shown frame", t).color(palette::FOCUS).width(1.5));
+            }
+        };
         let tu = self.time_unit();
         let (tunit, punit) = if self.real() {
             ("K", "bar")
@@ -273,6 +280,7 @@ impl Plots {
                     Line::new("conserved energy drift", PlotPoints::Borrowed(drift.points()))
                         .color(palette::SERIES[0]),
                 );
+                mark(p);
             });
             plot("energy-plot", "energy per atom [ε]".into(), energy_range).show(ui, |p| {
                 p.line(
@@ -283,6 +291,7 @@ impl Plots {
                         .color(palette::SERIES[2]),
                 );
                 p.line(Line::new("total", PlotPoints::Borrowed(total.points())).color(palette::SERIES[3]));
+                mark(p);
             });
         });
         ui.horizontal(|ui| {
@@ -296,6 +305,7 @@ impl Plots {
                     Line::new("temperature", PlotPoints::Borrowed(temperature.points()))
                         .color(palette::SERIES[4]),
                 );
+                mark(p);
                 if let Some(t) = target {
                     p.hline(
                         HLine::new("target", t)
@@ -308,6 +318,7 @@ impl Plots {
                 p.line(
                     Line::new("pressure", PlotPoints::Borrowed(pressure.points())).color(palette::SERIES[5]),
                 );
+                mark(p);
             });
         });
     }

@@ -167,6 +167,10 @@ pub struct SetupForm {
     pub sample_every: String,
     /// Kept from the loaded setup (not edited in the form).
     pub trajectory_every: Option<u64>,
+    /// Carried through unchanged (the form has no control for it).
+    pub recover: bool,
+    /// Carried through unchanged (the form has no control for it).
+    pub start: crate::io::setup::Start,
     /// Kept from the loaded setup (not edited in the form).
     pub rdf_every: Option<u64>,
     /// Kept from the loaded setup (not edited in the form).
@@ -270,6 +274,8 @@ impl SetupForm {
             equilibration_steps: s.equilibration_steps.to_string(),
             sample_every: s.sample_every.to_string(),
             trajectory_every: s.trajectory_every,
+            recover: s.recover,
+            start: s.start.clone(),
             rdf_every: s.rdf_every,
             rdf_reach: s.rdf_reach,
             diffusion_window: s.diffusion_window,
@@ -383,6 +389,8 @@ impl SetupForm {
             equilibration_steps,
             sample_every,
             trajectory_every: self.trajectory_every,
+            recover: self.recover,
+            start: self.start.clone(),
             rdf_every: self.rdf_every,
             rdf_reach: self.rdf_reach,
             diffusion_window: self.diffusion_window,

@@ -1,4 +1,4 @@
-//! The status line and the watchdog banner.
+//! The status line (the watchdog's banner is [`super::alarm_view`]).
 
 use super::palette;
 use crate::engine::{Alarm, Status};
@@ -98,32 +98,6 @@ impl StatusLine {
             si_count(s.atom_steps_per_second),
             s.list_builds
         )
-    }
-
-    /// Draws the alarm banner if there is an alarm; returns true if Rewind was pressed.
-    pub fn alarm_banner(&mut self, ui: &mut egui::Ui) -> bool {
-        let Some(alarm) = &self.alarm else { return false };
-        let mut rewind = false;
-        let mut dismiss = false;
-        egui::Frame::new()
-            .fill(palette::ALARM)
-            .inner_margin(8.0)
-            .corner_radius(4.0)
-            .show(ui, |ui| {
-                ui.horizontal_wrapped(|ui| {
-                    ui.colored_label(
-                        egui::Color32::WHITE,
-                        egui::RichText::new("Watchdog stopped the run:").strong(),
-                    );
-                    ui.colored_label(egui::Color32::WHITE, alarm.describe());
-                    rewind = ui.button("Rewind to the last safe state").clicked();
-                    dismiss = ui.button("Dismiss").clicked();
-                });
-            });
-        if dismiss {
-            self.alarm = None;
-        }
-        rewind
     }
 
     /// Draws the status line and the latest message.

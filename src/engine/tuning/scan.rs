@@ -3,7 +3,6 @@
 
 use super::request::{TuneError, TuneRequest};
 use crate::engine::session::Session;
-use crate::engine::watchdog::Alarm;
 use crate::physics::{PotentialMode, Simulation, SimulationSpec, SimulationState, Species, Thermostat};
 use serde::Serialize;
 use std::sync::atomic::{AtomicBool, Ordering};
@@ -257,7 +256,7 @@ pub fn equilibrate_and_scan(
 ) -> Result<TuningReport, TuneError> {
     for _ in 0..steps {
         if let Some(a) = session.step().alarm
-            && matches!(a, Alarm::NonFinite { .. })
+            && a.kind.is_blow_up()
         {
             return Err(TuneError::Equilibration(a.describe()));
         }
