@@ -5,14 +5,13 @@ use super::session::Session;
 use super::watchdog::Alarm;
 use crate::analysis::RadialDistribution;
 use crate::analysis::StartChoice;
-use crate::analysis::eos_reference::{self, RunState};
+use crate::analysis::eos_reference;
 use crate::analysis::precision;
 use crate::io::energy_log::EnergyLog;
 use crate::io::rdf_csv::rdf_csv;
 use crate::io::run_folder::{self, FolderError, StagedRun};
 use crate::io::summary::{RunFacts, StopReason, Summary};
 use crate::io::trajectory;
-use crate::physics::PotentialMode;
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use std::io::{BufWriter, IsTerminal, Write};
 use std::path::{Path, PathBuf};
@@ -197,18 +196,9 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
         .map_err(|e| RunError::Failed(e.to_string()))?;
     let sim = session.simulation();
     let evidence = session.evidence(StartChoice::Automatic);
-    let spec = sim.spec();
-    let equation_of_state = (spec.kinds.len() == 1).then(|| {
-        eos_reference::compare(
-            &evidence,
-            RunState {
-                density: sim.system().density(),
-                bath_temperature: session.thermostatted().then_some(spec.temperature),
-                single_species: true,
-                shifted_force: spec.potential == PotentialMode::ShiftedForce,
-            },
-        )
-    });
+    let equation_of_state = session
+        .eos_run_state()
+        .map(|state| eos_reference::compare(&evidence, state));
     let summary = Summary::new(
         session.samples(),
         &evidence,

@@ -13,7 +13,7 @@ pub mod tuning;
 pub mod watchdog;
 
 pub use frame::{Frame, FrameMailbox};
-pub use protocol::{Command, CommandKind, Event, Status};
+pub use protocol::{Command, CommandKind, Event, EvidenceReport, Status};
 pub use runner::{EngineHandle, Refusal};
 pub use session::Session;
 pub use tuning::{TuneError, TuneInput, TuneRequest, TuningReport};

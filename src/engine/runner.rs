@@ -5,11 +5,12 @@
 //! never waits for drawing: it fills a frame only when the last one was taken.
 
 use super::frame::{Frame, FrameMailbox};
-use super::protocol::{Command, CommandKind, Event, Status};
+use super::protocol::{Command, CommandKind, Event, EvidenceReport, Status};
 use super::rewind::RewindBuffer;
 use super::session::Session;
 use super::tuning::{self, TuneError, TuneRequest, TuneUnits, TuningReport};
 use super::watchdog::Alarm;
+use crate::analysis::{StartChoice, eos_reference, precision};
 use crate::io::checkpoint::{Checkpoint, CheckpointError};
 use crate::io::setup::{Setup, SetupError};
 use crate::physics::{SimulationSpec, SimulationState, SpecError};
@@ -25,6 +26,12 @@ const SNAPSHOT_EVERY: u64 = 500;
 const BATCH: Duration = Duration::from_millis(15);
 /// How often a status event goes out.
 const STATUS_EVERY: Duration = Duration::from_millis(250);
+/// Least time between two refreshes of the evidence while running.
+const EVIDENCE_EVERY: Duration = Duration::from_secs(1);
+/// While running, the evidence is refreshed no more often than this many times its last cost,
+/// so the analysis takes at most 1/EVIDENCE_COST_SHARE of the engine thread even on runs whose
+/// analysis takes longer than expected.
+const EVIDENCE_COST_SHARE: u32 = 50;
 
 /// Why the engine refused a command (sent on as [`Event::Rejected`] with its message).
 #[derive(Debug, thiserror::Error)]
@@ -144,6 +151,15 @@ struct Engine {
     tune: Option<TuneJob>,
     /// Whether the run still pauses when it reaches the setup's `steps` (once per start).
     stop_at_steps: bool,
+    /// Whether the run still pauses when its precision targets are met (once per start).
+    stop_at_precision: bool,
+    /// Where the averages start, as the window last asked.
+    average_start: StartChoice,
+    /// The evidence should go out as soon as the commands waiting are read.
+    evidence_due: bool,
+    /// When the evidence last went out, and the least time until the next refresh.
+    last_evidence: Instant,
+    evidence_every: Duration,
 }
 
 /// A tuning scan on its own thread, working on copies of the state.
@@ -205,6 +221,11 @@ impl Engine {
             steps_per_second: 0.0,
             tune: None,
             stop_at_steps: true,
+            stop_at_precision: true,
+            average_start: StartChoice::Automatic,
+            evidence_due: true,
+            last_evidence: Instant::now(),
+            evidence_every: EVIDENCE_EVERY,
         }
     }
 
@@ -252,6 +273,10 @@ impl Engine {
         self.rewind.push(session.simulation().state());
         self.last_alarm = None;
         self.stop_at_steps = session.simulation().step_count() < session.setup().steps;
+        self.stop_at_precision = true;
+        // A manual start belongs to the run it was set on.
+        self.average_start = StartChoice::Automatic;
+        self.evidence_due = true;
         self.emit(Event::Started {
             setup: Box::new(session.setup().clone()),
             atoms: session.simulation().system().len(),
@@ -271,8 +296,8 @@ impl Engine {
         self.start(&session);
         loop {
             self.poll_tune();
-            // Read commands: wait while paused, only peek while running.
-            let cmd = if self.running {
+            // Read commands: wait while paused, only peek while running or while evidence is due.
+            let cmd = if self.running || self.evidence_due {
                 self.commands.try_recv().ok()
             } else {
                 match self.commands.recv_timeout(Duration::from_millis(50)) {
@@ -310,7 +335,33 @@ impl Engine {
             if self.last_status.elapsed() >= STATUS_EVERY {
                 self.send_status(&session);
             }
+            if self.evidence_due || (self.running && self.last_evidence.elapsed() >= self.evidence_every) {
+                self.send_evidence(&session);
+            }
         }
+    }
+
+    /// Analyses the samples from the chosen start and sends the evidence.
+    fn send_evidence(&mut self, session: &Session) {
+        let started = Instant::now();
+        let evidence = session.evidence(self.average_start);
+        let precision = precision::progress(&evidence, session.precision_targets());
+        let eos = session
+            .eos_run_state()
+            .map(|state| eos_reference::compare(&evidence, state));
+        let cost = started.elapsed();
+        self.evidence_every = EVIDENCE_EVERY.max(cost * EVIDENCE_COST_SHARE);
+        self.emit(Event::Evidence(Box::new(EvidenceReport {
+            evidence,
+            precision,
+            eos,
+            units: session.units(),
+            sample_every: session.setup().sample_every,
+            step: session.simulation().step_count(),
+            analysis_seconds: cost.as_secs_f64(),
+        })));
+        self.evidence_due = false;
+        self.last_evidence = Instant::now();
     }
 
     fn advance(&mut self, session: &mut Session) {
@@ -324,7 +375,17 @@ impl Engine {
             self.last_alarm = Some(a.clone());
             self.emit(Event::Alarm(a));
             self.send_status(session);
+            self.evidence_due = true;
             return;
+        }
+        if let Some(met) = out.precision_met
+            && self.stop_at_precision
+        {
+            self.stop_at_precision = false;
+            self.running = false;
+            self.emit(Event::PrecisionReached(met));
+            self.send_status(session);
+            self.evidence_due = true;
         }
         let step = session.simulation().step_count();
         if self.rewind.due(step) {
@@ -336,6 +397,7 @@ impl Engine {
             self.running = false;
             self.emit(Event::ReachedSteps { steps });
             self.send_status(session);
+            self.evidence_due = true;
         }
     }
 
@@ -408,6 +470,7 @@ impl Engine {
             }),
             Command::Pause => {
                 self.running = false;
+                self.evidence_due = true;
                 Ok(())
             }
             Command::StepOnce => {
@@ -415,7 +478,13 @@ impl Engine {
                 self.check_not_blown_up("stepping").map(|()| {
                     self.advance(session);
                     self.publish_frame(session, true);
+                    self.evidence_due = true;
                 })
+            }
+            Command::SetAverageStart(choice) => {
+                self.average_start = choice;
+                self.evidence_due = true;
+                Ok(())
             }
             Command::Apply(setup) => {
                 let new = Session::new(*setup).map_err(Refusal::from);
@@ -443,9 +512,13 @@ impl Engine {
             Command::SetThermostat {
                 ensemble,
                 temperature,
-            } => session
-                .set_thermostat(ensemble, temperature)
-                .map_err(Refusal::from),
+            } => {
+                // The bath decides which quantities relax, and the equation of state's temperature.
+                self.evidence_due = true;
+                session
+                    .set_thermostat(ensemble, temperature)
+                    .map_err(Refusal::from)
+            }
             Command::SaveCheckpoint(path) => {
                 session.checkpoint().save(&path).map_err(Refusal::from).map(|()| {
                     self.emit(Event::Saved(path));
@@ -485,8 +558,10 @@ impl Engine {
         let state = self.rewind.rewind_before(before).ok_or(Refusal::NoSnapshot)?;
         let spec = session.simulation().spec().clone();
         *session.simulation_mut() = crate::physics::Simulation::from_state(spec, state)?;
+        session.forget_samples_after(session.simulation().step_count());
         self.running = false;
         self.last_alarm = None;
+        self.evidence_due = true;
         self.emit(Event::Rewound {
             step: session.simulation().step_count(),
             time_tau: session.simulation().time(),
