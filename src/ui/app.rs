@@ -39,6 +39,7 @@ pub struct NoblescopeApp {
     pub(super) view: ParticleView,
     pub(super) form_open: bool,
     pub(super) tuning_open: bool,
+    pub(super) averages_open: bool,
     /// Start a scan of the default lists once the engine runs (`--view tuning`).
     pub(super) tune_at_start: bool,
     pub(super) help_open: bool,
@@ -61,6 +62,7 @@ impl NoblescopeApp {
             Some(StartView::Slab) => "slab",
             Some(StartView::Setup) => "setup",
             Some(StartView::Tuning) => "tuning",
+            Some(StartView::Averages) => "averages",
         };
         let mut run = RunView::new(&start.setup);
         if start.restored {
@@ -76,6 +78,7 @@ impl NoblescopeApp {
             view: ParticleView::new(start.settings),
             form_open: start.form_open,
             tuning_open: opts.view == Some(StartView::Tuning),
+            averages_open: opts.view == Some(StartView::Averages),
             tune_at_start: opts.view == Some(StartView::Tuning),
             help_open: false,
             leave: LeaveQuestion::default(),
@@ -106,6 +109,22 @@ impl NoblescopeApp {
     /// Mutable tuning panel.
     pub fn tuning_mut(&mut self) -> &mut TuningPanel {
         &mut self.run.tuning
+    }
+
+    /// Opens or closes the averages panel.
+    pub fn set_averages_open(&mut self, open: bool) {
+        self.averages_open = open;
+    }
+
+    /// The averages: the newest evidence and the start being set.
+    pub fn averages(&self) -> &super::averages::Averages {
+        &self.run.averages
+    }
+
+    /// Where the time plots drew the start line in the last frame: each plot's frame and the
+    /// line's screen x.
+    pub fn start_line_drawn(&self) -> &[(egui::Rect, f32)] {
+        self.run.plots.start_line_drawn()
     }
 
     /// Opens or closes the tuning panel.

@@ -2,11 +2,14 @@
 //! what each event does can be tested without a window. It is the one place that matches on
 //! [`Event`].
 
+use super::averages::Averages;
+use super::averages::{reduced_unit, setup_unit};
 use super::plots::Plots;
 use super::setup_form::SetupForm;
 use super::status::StatusLine;
 use super::tuning_panel::TuningPanel;
 use super::unit_field::format_number;
+use crate::analysis::TargetProgress;
 use crate::engine::Event;
 use crate::engine::{CommandKind, TuningReport};
 use crate::io::setup::{Ensemble, Setup};
@@ -26,6 +29,8 @@ pub struct RunView {
     pub tuning: TuningPanel,
     /// Atoms of the running simulation (0 until it started).
     pub atoms: usize,
+    /// The run's averages, verdicts and the start they are taken from.
+    pub averages: Averages,
 }
 
 /// What an event means for the rest of the window beyond the state it changed.
@@ -59,6 +64,27 @@ fn tuned_message(report: &TuningReport) -> String {
     }
 }
 
+/// The status line's sentence when every precision target is met.
+fn precision_message(met: &[TargetProgress], units: UnitSystem) -> String {
+    let targets: Vec<String> = met
+        .iter()
+        .map(|p| {
+            let q = p.target.quantity;
+            let (f, u) = setup_unit(q, units).unwrap_or((1.0, reduced_unit(q)));
+            format!(
+                "{} {} ≤ {} {u}",
+                q.label().to_lowercase(),
+                format_number(p.stderr * f),
+                format_number(p.target.stderr * f)
+            )
+        })
+        .collect();
+    format!(
+        "Precision reached and paused: standard error of {}. Press Run to go on; it will not stop for them again.",
+        targets.join(", ")
+    )
+}
+
 impl RunView {
     /// The view before the engine has said anything: `setup` is taken as running.
     pub fn new(setup: &Setup) -> Self {
@@ -69,6 +95,7 @@ impl RunView {
             status: StatusLine::default(),
             tuning: TuningPanel::for_setup(setup),
             atoms: 0,
+            averages: Averages::default(),
         }
     }
 
@@ -100,6 +127,7 @@ pub fn reduce(view: &mut RunView, event: Event) -> Echo {
             view.tuning.setup_changed(&setup);
             view.atoms = atoms;
             view.plots.restart(setup.units(), thermostat_target(&setup));
+            view.averages.restart();
             view.status.alarm = None;
         }
         Event::SetupChanged(setup) => {
@@ -134,6 +162,11 @@ pub fn reduce(view: &mut RunView, event: Event) -> Echo {
             view.status.info(format!(
                 "Reached the setup's {steps} steps and paused. Press Run to go on past them; the run is then longer than its setup says."
             ));
+        }
+        Event::Evidence(report) => view.averages.received(report),
+        Event::PrecisionReached(met) => {
+            view.status.status.running = false;
+            view.status.info(precision_message(&met, view.running.units()));
         }
         Event::Saved(p) => view.status.info(format!("Checkpoint saved to {}", p.display())),
     }

@@ -50,6 +50,8 @@ impl NoblescopeApp {
                 .on_hover_text(hint_of(&ctx, Action::ToggleSetupForm));
             ui.toggle_value(&mut self.tuning_open, "Tuning")
                 .on_hover_text("scan timesteps and cutoffs before a long run");
+            ui.toggle_value(&mut self.averages_open, "Averages")
+                .on_hover_text("means with their errors, and whether the run has equilibrated");
             if ui
                 .button("Help")
                 .on_hover_text(hint_of(&ctx, Action::ToggleHelp))

@@ -4,7 +4,9 @@
 //! the reduced fluid), and kept in bounded [`EnvelopeSeries`].
 
 use super::palette;
+use super::plot_marks::{PlotMarks, add_reference, paint_note};
 use super::series::{EnvelopeSeries, ThinnedLog};
+use super::start_line::{StartDrag, StartLine};
 use crate::physics::{Observables, UnitSystem};
 use egui_plot::{GridInput, GridMark, HLine, Legend, Line, Plot, PlotPoints};
 
@@ -95,6 +97,9 @@ pub struct Plots {
     target: Option<f64>,
     log: ThinnedLog<Observables>,
     last: Option<Observables>,
+    /// The draggable equilibration start, and where it was drawn in the last frame.
+    start_line: StartLine,
+    start_drawn: Vec<(egui::Rect, f32)>,
 }
 
 impl Plots {
@@ -112,6 +117,8 @@ impl Plots {
             target: None,
             log: ThinnedLog::new(EXPORT_CAPACITY),
             last: None,
+            start_line: StartLine::default(),
+            start_drawn: Vec::new(),
         }
     }
 
@@ -206,8 +213,15 @@ impl Plots {
         self.units
     }
 
-    /// Draws the four plots in a 2×2 grid filling the available space.
-    pub fn show(&mut self, ui: &mut egui::Ui, width: f32) {
+    /// Where the start line was drawn in the last frame: each time plot's frame and the line's
+    /// screen x (tests drag it from there).
+    pub fn start_line_drawn(&self) -> &[(egui::Rect, f32)] {
+        &self.start_drawn
+    }
+
+    /// Draws the four plots in a 2×2 grid filling the available space, with `marks`; returns
+    /// what the user did with the start line.
+    pub fn show(&mut self, ui: &mut egui::Ui, width: f32, marks: &PlotMarks) -> Option<StartDrag> {
         let tu = self.time_unit();
         let (tunit, punit) = if self.real() {
             ("K", "bar")
@@ -221,6 +235,8 @@ impl Plots {
         let target = self.target;
         let latest = self.last.map_or(0.0, |o| o.time * self.time_factor());
         let link = ui.scope_id().with("time-axis");
+        self.start_line.begin_frame();
+        let pan = !self.start_line.holds_pointer(ui, &self.start_drawn);
         let plot = |name: &str, ylabel: String, range: Option<(f64, f64)>| {
             let mut plot = Plot::new(name.to_string())
                 .width(w)
@@ -231,6 +247,7 @@ impl Plots {
                 .link_axis(link, [true, false])
                 .link_cursor(link, [true, false])
                 .allow_scroll(false)
+                .allow_drag(pan)
                 .y_axis_min_width(64.0)
                 .show_background(false)
                 .y_grid_spacer(nice_grid)
@@ -239,6 +256,9 @@ impl Plots {
                 .y_axis_formatter(|m, _| tick_label(m));
             if let Some((lo, hi)) = range {
                 plot = plot.include_y(lo).include_y(hi);
+            }
+            if let Some(s) = marks.start {
+                plot = plot.include_x(s);
             }
             // Time runs from 0; at step 0 one time unit is shown instead of a zoom into nothing.
             plot.include_x(0.0)
@@ -258,6 +278,25 @@ impl Plots {
         );
         let temperature_range = shown_y_range(self.temperature.y_range(), VALUE_MIN_SPAN);
         let pressure_range = shown_y_range(self.pressure.y_range(), VALUE_MIN_SPAN);
+        let with_reference = |range: Option<(f64, f64)>, r: &Option<super::plot_marks::Reference>| match r {
+            Some(r) => joint(
+                range,
+                [
+                    r.equation,
+                    Some(r.run_mean - 2.0 * r.run_stderr),
+                    Some(r.run_mean + 2.0 * r.run_stderr),
+                ]
+                .into_iter()
+                .flatten()
+                .filter(|v| v.is_finite())
+                .fold(None, |acc: Option<(f64, f64)>, v| {
+                    Some(acc.map_or((v, v), |(a, b)| (a.min(v), b.max(v))))
+                }),
+            ),
+            None => range,
+        };
+        let energy_range = with_reference(energy_range, &marks.energy);
+        let pressure_range = with_reference(pressure_range, &marks.pressure);
         let Plots {
             drift,
             kinetic,
@@ -265,16 +304,29 @@ impl Plots {
             total,
             temperature,
             pressure,
+            start_line,
             ..
         } = self;
+        let start = marks.start;
+        let manual = marks.manual;
+        let mut drag = None;
+        let mut follow = |ui: &egui::Ui, r: &egui_plot::PlotResponse<()>, line: &mut StartLine| {
+            if let Some(d) = line.after_plot(ui, r, start) {
+                drag = Some(d);
+            }
+        };
         ui.horizontal(|ui| {
-            plot("drift-plot", "relative drift [1]".into(), drift_range).show(ui, |p| {
+            let r = plot("drift-plot", "relative drift [1]".into(), drift_range).show(ui, |p| {
                 p.line(
                     Line::new("conserved energy drift", PlotPoints::Borrowed(drift.points()))
                         .color(palette::SERIES[0]),
                 );
+                if let Some(s) = start {
+                    StartLine::add_to(p, s, manual);
+                }
             });
-            plot("energy-plot", "energy per atom [ε]".into(), energy_range).show(ui, |p| {
+            follow(ui, &r, start_line);
+            let r = plot("energy-plot", "energy per atom [ε]".into(), energy_range).show(ui, |p| {
                 p.line(
                     Line::new("kinetic", PlotPoints::Borrowed(kinetic.points())).color(palette::SERIES[1]),
                 );
@@ -283,10 +335,20 @@ impl Plots {
                         .color(palette::SERIES[2]),
                 );
                 p.line(Line::new("total", PlotPoints::Borrowed(total.points())).color(palette::SERIES[3]));
+                if let Some(r) = &marks.energy {
+                    add_reference(p, r);
+                }
+                if let Some(s) = start {
+                    StartLine::add_to(p, s, manual);
+                }
             });
+            follow(ui, &r, start_line);
+            if let Some(n) = &marks.note {
+                paint_note(ui, *r.transform.frame(), n);
+            }
         });
         ui.horizontal(|ui| {
-            plot(
+            let r = plot(
                 "temperature-plot",
                 format!("temperature [{tunit}]"),
                 temperature_range,
@@ -303,13 +365,29 @@ impl Plots {
                             .style(egui_plot::LineStyle::dashed_dense()),
                     );
                 }
+                if let Some(s) = start {
+                    StartLine::add_to(p, s, manual);
+                }
             });
-            plot("pressure-plot", format!("pressure [{punit}]"), pressure_range).show(ui, |p| {
+            follow(ui, &r, start_line);
+            let r = plot("pressure-plot", format!("pressure [{punit}]"), pressure_range).show(ui, |p| {
                 p.line(
                     Line::new("pressure", PlotPoints::Borrowed(pressure.points())).color(palette::SERIES[5]),
                 );
+                if let Some(r) = &marks.pressure {
+                    add_reference(p, r);
+                }
+                if let Some(s) = start {
+                    StartLine::add_to(p, s, manual);
+                }
             });
+            follow(ui, &r, start_line);
+            if let Some(n) = &marks.note {
+                paint_note(ui, *r.transform.frame(), n);
+            }
         });
+        self.start_drawn = self.start_line.drawn();
+        drag
     }
 }
 

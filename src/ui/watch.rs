@@ -17,6 +17,8 @@ pub enum StartView {
     Setup,
     /// The tuning panel beside the view, with a scan of its default lists started at once.
     Tuning,
+    /// The averages panel beside the view.
+    Averages,
 }
 
 /// What a scripted watch does.

@@ -1,0 +1,112 @@
+//! The equilibration start on the time plots: a vertical line the user can drag, with the part
+//! of the run before it dimmed. The plots pan when dragged elsewhere; near the line (within
+//! [`GRAB_POINTS`]) a drag moves the line instead.
+
+use super::palette;
+use egui_plot::{PlotResponse, PlotUi, VLine};
+
+/// How close to the line, in points, a drag takes hold of it.
+pub const GRAB_POINTS: f32 = 6.0;
+
+/// What the user did with the start line this frame (display time units).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum StartDrag {
+    /// The line is being dragged and is now here.
+    Moved(f64),
+    /// The line was let go here.
+    Released(f64),
+}
+
+/// The start line's drag state across frames.
+#[derive(Clone, Debug, Default)]
+pub struct StartLine {
+    /// A drag holds the line.
+    grabbed: bool,
+    /// Each time plot's frame and the line's screen x, as last drawn.
+    drawn: Vec<(egui::Rect, f32)>,
+}
+
+impl StartLine {
+    /// Call before drawing the plots of a frame.
+    pub fn begin_frame(&mut self) {
+        self.drawn.clear();
+    }
+
+    /// Whether a plot should not pan this frame: the line is held, or the pointer is near it
+    /// (as it was drawn in the last frame).
+    pub fn holds_pointer(&self, ui: &egui::Ui, previous: &[(egui::Rect, f32)]) -> bool {
+        self.grabbed
+            || ui
+                .input(|i| i.pointer.hover_pos())
+                .is_some_and(|p| near(previous, p))
+    }
+
+    /// The line's positions drawn this frame (the next frame's `previous`).
+    pub fn drawn(&self) -> Vec<(egui::Rect, f32)> {
+        self.drawn.clone()
+    }
+
+    /// Adds the line at display time `start` to a plot being built.
+    pub fn add_to(p: &mut PlotUi<'_>, start: f64, manual: bool) {
+        let name = if manual {
+            "average start (set by hand)"
+        } else {
+            "equilibration start (detected)"
+        };
+        p.vline(VLine::new(name, start).color(palette::START_LINE).width(2.0));
+    }
+
+    /// After a plot was shown: dims the part before `start`, and follows a drag of the line.
+    pub fn after_plot<R>(
+        &mut self,
+        ui: &egui::Ui,
+        plot: &PlotResponse<R>,
+        start: Option<f64>,
+    ) -> Option<StartDrag> {
+        let start = start?;
+        let frame = *plot.transform.frame();
+        let x = plot.transform.position_from_point_x(start);
+        if x > frame.left() {
+            let dim = egui::Rect::from_min_max(frame.min, egui::pos2(x.min(frame.right()), frame.max.y));
+            ui.painter_at(frame).rect_filled(dim, 0.0, palette::BEFORE_START);
+        }
+        self.drawn.push((frame, x));
+        let r = &plot.response;
+        let here = [(frame, x)];
+        if r.hovered()
+            && ui
+                .input(|i| i.pointer.hover_pos())
+                .is_some_and(|p| near(&here, p))
+            || self.grabbed && r.dragged()
+        {
+            ui.ctx().set_cursor_icon(egui::CursorIcon::ResizeHorizontal);
+        }
+        if r.drag_started()
+            && ui
+                .input(|i| i.pointer.press_origin())
+                .is_some_and(|p| near(&here, p))
+        {
+            self.grabbed = true;
+        }
+        if !self.grabbed {
+            return None;
+        }
+        let at = |p: egui::Pos2| plot.transform.value_from_position(p).x;
+        if r.drag_stopped() {
+            self.grabbed = false;
+            let p = ui.input(|i| i.pointer.interact_pos())?;
+            return Some(StartDrag::Released(at(p)));
+        }
+        if r.dragged() {
+            let p = ui.input(|i| i.pointer.interact_pos())?;
+            return Some(StartDrag::Moved(at(p)));
+        }
+        None
+    }
+}
+
+fn near(lines: &[(egui::Rect, f32)], p: egui::Pos2) -> bool {
+    lines
+        .iter()
+        .any(|(rect, x)| rect.contains(p) && (p.x - x).abs() <= GRAB_POINTS)
+}
