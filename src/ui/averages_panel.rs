@@ -9,7 +9,7 @@ use super::plots::{nice_grid, tick_label};
 use crate::analysis::eos_reference::{EosComparison, TemperatureSource};
 use crate::analysis::{Quantity, StartChoice, Verdict};
 use crate::engine::{Command, EvidenceReport};
-use crate::io::numbers::format_number;
+use crate::io::numbers::{format_number, significant};
 use crate::io::summary::MODEL_CAUTION;
 use egui_plot::{HLine, Legend, Line, Plot, PlotPoints, Points};
 
@@ -20,6 +20,36 @@ fn verdict_colour(v: &Verdict) -> egui::Color32 {
         Verdict::StillDrifting => palette::ERROR_TEXT,
         Verdict::NotYet(_) => palette::CAUTION_TEXT,
     }
+}
+
+/// A short name for table rows (energies are per atom, as the table's note says).
+fn short_label(q: Quantity) -> &'static str {
+    match q {
+        Quantity::Temperature => "Temperature",
+        Quantity::Pressure => "Pressure",
+        Quantity::PotentialEnergy => "Potential energy",
+        Quantity::TotalEnergy => "Total energy",
+        Quantity::ConservedEnergy => "Conserved energy",
+        Quantity::FullPotentialEnergy => "Potential energy, full",
+        Quantity::FullPressure => "Pressure, full",
+    }
+}
+
+/// Grid marks at whole powers of two on a log₂ axis: about five, never between integers.
+fn log2_grid(input: egui_plot::GridInput) -> Vec<egui_plot::GridMark> {
+    let (lo, hi) = input.bounds;
+    if !(hi > lo && (hi - lo).is_finite()) {
+        return Vec::new();
+    }
+    let step = ((hi - lo) / 5.0).ceil().max(1.0);
+    let first = (lo / step).ceil() as i64;
+    let last = (hi / step).floor() as i64;
+    (first..=last)
+        .map(|k| egui_plot::GridMark {
+            value: k as f64 * step,
+            step_size: step,
+        })
+        .collect()
 }
 
 /// A mean ± standard error in the setup's units, or "" for the reduced fluid.
@@ -112,36 +142,38 @@ impl Averages {
         let real = r.units.has_real_units();
         egui::Grid::new("averages-table")
             .striped(true)
-            .num_columns(if real { 7 } else { 6 })
-            .spacing([10.0, 3.0])
+            .num_columns(6)
+            .spacing([10.0, 2.0])
             .show(ui, |ui| {
-                let mut heads = vec!["quantity", "mean ± s.e. (reduced)"];
-                if real {
-                    heads.push("in setup units");
-                }
-                heads.extend(["g [samples]", "eff. samples", "averaged from", "verdict"]);
-                for h in heads {
+                let mean_head = if real {
+                    "mean ± s.e. (setup units, reduced)"
+                } else {
+                    "mean ± s.e. (reduced)"
+                };
+                for h in ["quantity", mean_head, "g [samples]", "eff. samples", "averaged from", "verdict"] {
                     ui.label(egui::RichText::new(h).strong());
                 }
                 ui.end_row();
                 for q in Quantity::FOLLOWED {
                     let row = r.evidence.row(q);
                     let s = &row.stats;
-                    ui.label(q.label()).on_hover_text(if row.decides {
+                    ui.label(short_label(q)).on_hover_text(if row.decides {
                         "decides the overall verdict"
                     } else {
                         "followed for drift; does not decide the overall verdict"
                     });
-                    ui.label(format!("{} {}", mean_pm(s.mean, s.stderr), reduced_unit(q)));
+                    let reduced = format!("{} {}", mean_pm(s.mean, s.stderr), reduced_unit(q));
                     if real {
-                        ui.label(in_setup_units(q, r, s.mean, s.stderr));
+                        ui.vertical(|ui| {
+                            ui.spacing_mut().item_spacing.y = 0.0;
+                            ui.label(in_setup_units(q, r, s.mean, s.stderr));
+                            ui.label(egui::RichText::new(reduced).small().weak());
+                        });
+                    } else {
+                        ui.label(reduced);
                     }
                     let g = row.inefficiency_in_samples(r.evidence.width);
-                    ui.label(if g.is_finite() {
-                        format!("{g:.1}")
-                    } else {
-                        "–".into()
-                    });
+                    ui.label(if g.is_finite() { format!("{g:.1}") } else { "–".into() });
                     ui.label(format!("{:.0}", s.effective_samples));
                     ui.label(time(r.evidence.start_time));
                     let words = row.verdict.words(time);
@@ -154,6 +186,7 @@ impl Averages {
                     ui.end_row();
                 }
             });
+        ui.weak("Energies per atom. Hover a verdict for its reason; \"info\" rows are followed but do not decide the overall verdict.");
     }
 
     fn block_curve(&mut self, ui: &mut egui::Ui, r: &EvidenceReport) {
@@ -209,7 +242,8 @@ impl Averages {
             .y_axis_min_width(56.0)
             .y_grid_spacer(nice_grid)
             .y_axis_formatter(|m, _| tick_label(m))
-            .x_axis_formatter(|m, _| format_number(2f64.powf(m.value)))
+            .x_grid_spacer(log2_grid)
+            .x_axis_formatter(|m, _| format_number(2f64.powf(m.value).round()))
             .show(ui, |p| {
                 p.line(
                     Line::new("block estimate", PlotPoints::from(curve.clone())).color(palette::SERIES[5]),
@@ -255,10 +289,10 @@ fn precision_targets(ui: &mut egui::Ui, r: &EvidenceReport) {
             for p in &r.precision {
                 let q = p.target.quantity;
                 let (f, u) = setup_unit(q, r.units).unwrap_or((1.0, reduced_unit(q)));
-                ui.label(q.label());
-                ui.label(format!("{} {u}", format_number(p.target.stderr * f)));
+                ui.label(short_label(q));
+                ui.label(format!("{} {u}", significant(p.target.stderr * f, 3)));
                 ui.label(if p.stderr.is_finite() {
-                    format!("{} {u}", format_number(p.stderr * f))
+                    format!("{} {u}", significant(p.stderr * f, 3))
                 } else {
                     "–".into()
                 });

@@ -108,7 +108,8 @@ impl NoblescopeApp {
                 .max_size((total - form_width - tuning_width - MIN_CENTRE_WIDTH).max(AVERAGES_MIN_WIDTH))
                 .show(ui, |ui| {
                     ui.heading("Averages");
-                    egui::ScrollArea::both().show(ui, |ui| {
+                    // Vertical only: the texts wrap to the panel, the table fits its narrowest.
+                    egui::ScrollArea::vertical().show(ui, |ui| {
                         if let Some(c) = self.run.averages.show(ui) {
                             self.send(c);
                         }

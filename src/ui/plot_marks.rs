@@ -5,7 +5,8 @@
 use super::averages::Averages;
 use super::palette;
 use crate::analysis::Quantity;
-use egui_plot::{HLine, LineStyle, PlotUi};
+use egui::Align2;
+use egui_plot::{HLine, LineStyle, PlotResponse, PlotUi};
 
 /// A reference on one plot, in that plot's units.
 #[derive(Clone, Debug, PartialEq)]
@@ -28,8 +29,8 @@ pub struct PlotMarks {
     pub pressure: Option<Reference>,
     /// On the energy plot (ε per atom).
     pub energy: Option<Reference>,
-    /// A note under the pressure and energy plots: why the equation is hidden, or that the
-    /// model only approximates the real gas.
+    /// A note on the pressure and energy plots' references: why the equation is hidden, or
+    /// that the model only approximates the real gas.
     pub note: Option<String>,
 }
 
@@ -79,23 +80,23 @@ impl PlotMarks {
     }
 }
 
-/// Adds a reference's lines to a plot being built.
+/// Adds a reference's lines to a plot being built (the legend leaves them out;
+/// [`label_reference`] labels them and the caption under the plots explains them).
 pub fn add_reference(p: &mut PlotUi<'_>, r: &Reference) {
     if let Some(v) = r.equation {
         p.hline(
-            HLine::new("equation of state (full potential)", v)
+            HLine::new("", v)
                 .color(palette::EOS_LINE)
                 .width(1.5)
                 .style(LineStyle::dashed_dense()),
         );
     }
     if r.run_mean.is_finite() {
-        let name = "run, full potential: mean ± 2 s.e.";
-        p.hline(HLine::new(name, r.run_mean).color(palette::RUN_BAND).width(1.0));
+        p.hline(HLine::new("", r.run_mean).color(palette::RUN_BAND).width(1.0));
         if r.run_stderr.is_finite() && r.run_stderr > 0.0 {
             for s in [-2.0, 2.0] {
                 p.hline(
-                    HLine::new(name, r.run_mean + s * r.run_stderr)
+                    HLine::new("", r.run_mean + s * r.run_stderr)
                         .color(palette::RUN_BAND)
                         .width(1.0)
                         .style(LineStyle::dotted_dense()),
@@ -105,20 +106,59 @@ pub fn add_reference(p: &mut PlotUi<'_>, r: &Reference) {
     }
 }
 
-/// Writes `note` small at the bottom of a plot's frame, wrapped to its width.
-pub fn paint_note(ui: &egui::Ui, frame: egui::Rect, note: &str) {
-    let galley = ui.painter().layout(
-        note.to_string(),
-        egui::FontId::proportional(11.0),
-        palette::CAUTION_TEXT,
-        frame.width() - 12.0,
-    );
-    let pos = egui::pos2(frame.left() + 6.0, frame.bottom() - galley.size().y - 4.0);
+/// Labels a reference's lines at the left edge of the plot shown (in the dimmed part before
+/// the start, clear of the legend), the equation's on the side away from the run's.
+pub fn label_reference<R>(ui: &egui::Ui, plot: &PlotResponse<R>, r: &Reference) {
+    let frame = *plot.transform.frame();
     let painter = ui.painter_at(frame);
-    painter.rect_filled(
-        egui::Rect::from_min_size(pos, galley.size()).expand(2.0),
-        2.0,
-        palette::BEFORE_START,
-    );
-    painter.galley(pos, galley, palette::CAUTION_TEXT);
+    let at = |y: f64| plot.transform.position_from_point_y(y);
+    let run_above = r.equation.is_none_or(|v| r.run_mean >= v);
+    let font = egui::FontId::proportional(11.0);
+    let left = frame.left() + 4.0;
+    if let Some(v) = r.equation {
+        let (dy, anchor) = if run_above {
+            (2.0, Align2::LEFT_TOP)
+        } else {
+            (-2.0, Align2::LEFT_BOTTOM)
+        };
+        painter.text(egui::pos2(left, at(v) + dy), anchor, "equation of state", font.clone(), palette::EOS_LINE);
+    }
+    if r.run_mean.is_finite() {
+        let e = 2.0 * r.run_stderr.max(0.0);
+        let (y, dy, anchor) = if run_above {
+            (r.run_mean + e, -2.0, Align2::LEFT_BOTTOM)
+        } else {
+            (r.run_mean - e, 2.0, Align2::LEFT_TOP)
+        };
+        painter.text(egui::pos2(left, at(y) + dy), anchor, "run, full potential ± 2 s.e.", font, palette::RUN_BAND);
+    }
+}
+
+impl PlotMarks {
+    /// The caption under the plots: what the start line and the reference lines are.
+    pub fn caption(&self, ui: &mut egui::Ui) {
+        ui.horizontal_wrapped(|ui| {
+            ui.spacing_mut().item_spacing.x = 0.0;
+            let small = |t: &str| egui::RichText::new(t.to_string()).small();
+            if self.start.is_some() {
+                ui.label(
+                    small("Cyan line: averages are taken from here (drag it, or type a time in Averages); the dimmed part before it is left out. ")
+                        .color(palette::START_LINE),
+                );
+            }
+            if self.pressure.is_some() {
+                ui.label(
+                    small("Dashed white: Lennard-Jones equation of state (full potential). ")
+                        .color(palette::EOS_LINE),
+                );
+                ui.label(
+                    small("Orange: the run's full-potential mean, dotted ± 2 standard errors. ")
+                        .color(palette::RUN_BAND),
+                );
+            }
+            if let Some(n) = &self.note {
+                ui.label(small(n).color(palette::CAUTION_TEXT));
+            }
+        });
+    }
 }

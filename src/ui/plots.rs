@@ -4,7 +4,7 @@
 //! the reduced fluid), and kept in bounded [`EnvelopeSeries`].
 
 use super::palette;
-use super::plot_marks::{PlotMarks, add_reference, paint_note};
+use super::plot_marks::{PlotMarks, add_reference, label_reference};
 use super::series::{EnvelopeSeries, ThinnedLog};
 use super::start_line::{StartDrag, StartLine};
 use crate::physics::{Observables, UnitSystem};
@@ -229,7 +229,9 @@ impl Plots {
             ("kT/ε", "ε/σ³")
         };
         // The width the caller measured before anything above could widen the ui.
-        let avail = egui::vec2(width.min(ui.available_width()), ui.available_height());
+        // Room for the caption under the plots (two small lines).
+        let caption = if marks.start.is_some() || marks.note.is_some() { 30.0 } else { 0.0 };
+        let avail = egui::vec2(width.min(ui.available_width()), ui.available_height() - caption);
         let w = (avail.x - 8.0) / 2.0;
         let h = ((avail.y - 8.0) / 2.0).max(90.0);
         let target = self.target;
@@ -311,7 +313,7 @@ impl Plots {
         let manual = marks.manual;
         let mut drag = None;
         let mut follow = |ui: &egui::Ui, r: &egui_plot::PlotResponse<()>, line: &mut StartLine| {
-            if let Some(d) = line.after_plot(ui, r, start) {
+            if let Some(d) = line.after_plot(ui, r, start, manual) {
                 drag = Some(d);
             }
         };
@@ -322,7 +324,7 @@ impl Plots {
                         .color(palette::SERIES[0]),
                 );
                 if let Some(s) = start {
-                    StartLine::add_to(p, s, manual);
+                    StartLine::add_to(p, s);
                 }
             });
             follow(ui, &r, start_line);
@@ -339,12 +341,12 @@ impl Plots {
                     add_reference(p, r);
                 }
                 if let Some(s) = start {
-                    StartLine::add_to(p, s, manual);
+                    StartLine::add_to(p, s);
                 }
             });
             follow(ui, &r, start_line);
-            if let Some(n) = &marks.note {
-                paint_note(ui, *r.transform.frame(), n);
+            if let Some(m) = &marks.energy {
+                label_reference(ui, &r, m);
             }
         });
         ui.horizontal(|ui| {
@@ -366,7 +368,7 @@ impl Plots {
                     );
                 }
                 if let Some(s) = start {
-                    StartLine::add_to(p, s, manual);
+                    StartLine::add_to(p, s);
                 }
             });
             follow(ui, &r, start_line);
@@ -378,14 +380,17 @@ impl Plots {
                     add_reference(p, r);
                 }
                 if let Some(s) = start {
-                    StartLine::add_to(p, s, manual);
+                    StartLine::add_to(p, s);
                 }
             });
             follow(ui, &r, start_line);
-            if let Some(n) = &marks.note {
-                paint_note(ui, *r.transform.frame(), n);
+            if let Some(m) = &marks.pressure {
+                label_reference(ui, &r, m);
             }
         });
+        if caption > 0.0 {
+            marks.caption(ui);
+        }
         self.start_drawn = self.start_line.drawn();
         drag
     }

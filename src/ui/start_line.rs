@@ -46,30 +46,43 @@ impl StartLine {
         self.drawn.clone()
     }
 
-    /// Adds the line at display time `start` to a plot being built.
-    pub fn add_to(p: &mut PlotUi<'_>, start: f64, manual: bool) {
-        let name = if manual {
-            "average start (set by hand)"
-        } else {
-            "equilibration start (detected)"
-        };
-        p.vline(VLine::new(name, start).color(palette::START_LINE).width(2.0));
+    /// Adds the line at display time `start` to a plot being built (the legend leaves it out;
+    /// [`StartLine::after_plot`] labels it and the caption under the plots explains it).
+    pub fn add_to(p: &mut PlotUi<'_>, start: f64) {
+        p.vline(VLine::new("", start).color(palette::START_LINE).width(2.0));
     }
 
-    /// After a plot was shown: dims the part before `start`, and follows a drag of the line.
+    /// After a plot was shown: dims the part before `start`, labels the line (`manual`: set by
+    /// hand), and follows a drag of the line.
     pub fn after_plot<R>(
         &mut self,
         ui: &egui::Ui,
         plot: &PlotResponse<R>,
         start: Option<f64>,
+        manual: bool,
     ) -> Option<StartDrag> {
         let start = start?;
         let frame = *plot.transform.frame();
         let x = plot.transform.position_from_point_x(start);
+        let painter = ui.painter_at(frame);
         if x > frame.left() {
             let dim = egui::Rect::from_min_max(frame.min, egui::pos2(x.min(frame.right()), frame.max.y));
-            ui.painter_at(frame).rect_filled(dim, 0.0, palette::BEFORE_START);
+            painter.rect_filled(dim, 0.0, palette::BEFORE_START);
         }
+        // Labelled at the bottom, clear of the legends at the top; to the line's left near the
+        // right edge.
+        let (lx, anchor) = if x > frame.right() - 100.0 {
+            (x - 4.0, egui::Align2::RIGHT_BOTTOM)
+        } else {
+            (x + 4.0, egui::Align2::LEFT_BOTTOM)
+        };
+        painter.text(
+            egui::pos2(lx, frame.bottom() - 2.0),
+            anchor,
+            if manual { "from (set)" } else { "from (detected)" },
+            egui::FontId::proportional(11.0),
+            palette::START_LINE,
+        );
         self.drawn.push((frame, x));
         let r = &plot.response;
         let here = [(frame, x)];
