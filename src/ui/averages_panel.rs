@@ -7,6 +7,7 @@ use super::averages::{Averages, mean_pm, reduced_unit, setup_unit, steps_needed,
 use super::palette;
 use super::plots::{nice_grid, tick_label};
 use crate::analysis::eos_reference::{EosComparison, TemperatureSource};
+use crate::analysis::series_statistics::MIN_BLOCKS_PLATEAU;
 use crate::analysis::{Quantity, StartChoice, Verdict};
 use crate::engine::{Command, EvidenceReport};
 use crate::io::numbers::{format_number, significant};
@@ -82,10 +83,11 @@ impl Averages {
             );
         });
         ui.weak(format!(
-            "{} samples to step {} ({} raw samples per stored entry); the overall verdict is decided by {}.",
+            "{} samples to step {} ({} raw samples per stored entry; analysed in {:.1} ms); the overall verdict is decided by {}.",
             ev.entries,
             report.step,
             ev.width,
+            report.analysis_seconds * 1e3,
             ev.rows
                 .iter()
                 .filter(|r| r.decides)
@@ -150,7 +152,14 @@ impl Averages {
                 } else {
                     "mean ± s.e. (reduced)"
                 };
-                for h in ["quantity", mean_head, "g [samples]", "eff. samples", "averaged from", "verdict"] {
+                for h in [
+                    "quantity",
+                    mean_head,
+                    "g [samples]",
+                    "eff. samples",
+                    "averaged from",
+                    "verdict",
+                ] {
                     ui.label(egui::RichText::new(h).strong());
                 }
                 ui.end_row();
@@ -173,7 +182,11 @@ impl Averages {
                         ui.label(reduced);
                     }
                     let g = row.inefficiency_in_samples(r.evidence.width);
-                    ui.label(if g.is_finite() { format!("{g:.1}") } else { "–".into() });
+                    ui.label(if g.is_finite() {
+                        format!("{g:.1}")
+                    } else {
+                        "–".into()
+                    });
                     ui.label(format!("{:.0}", s.effective_samples));
                     ui.label(time(r.evidence.start_time));
                     let words = row.verdict.words(time);
@@ -212,11 +225,17 @@ impl Averages {
         let row = r.evidence.row(q);
         let (f, unit) = setup_unit(q, r.units).unwrap_or((1.0, reduced_unit(q)));
         let width = r.evidence.width as f64;
-        let curve: Vec<[f64; 2]> = row
+        let point = |l: &crate::analysis::series_statistics::BlockLevel| {
+            [(l.block_size as f64 * width).log2(), l.stderr * f]
+        };
+        let curve: Vec<[f64; 2]> = row.stats.blocks.iter().map(point).collect();
+        // Levels of few blocks are noisy; the plateau is read without them.
+        let few: Vec<[f64; 2]> = row
             .stats
             .blocks
             .iter()
-            .map(|l| [(l.block_size as f64 * width).log2(), l.stderr * f])
+            .filter(|l| l.blocks < MIN_BLOCKS_PLATEAU)
+            .map(point)
             .collect();
         ui.weak("Standard error of the mean read from block means, against block size: it rises while blocks are shorter than the correlation time and levels off once they are not.");
         if curve.len() < 2 {
@@ -232,13 +251,14 @@ impl Averages {
             .y_axis_label(format!("s.e. [{unit}]"))
             .legend(
                 Legend::default()
-                    .position(egui_plot::Corner::RightBottom)
-                    .text_style(egui::TextStyle::Small),
+                    .position(egui_plot::Corner::LeftTop)
+                    .text_style(egui::TextStyle::Small)
+                    .background_alpha(0.7),
             )
             .allow_scroll(false)
             .show_background(false)
             .include_y(0.0)
-            .include_y(top * 1.15)
+            .include_y(top * 1.6)
             .y_axis_min_width(56.0)
             .y_grid_spacer(nice_grid)
             .y_axis_formatter(|m, _| tick_label(m))
@@ -253,6 +273,17 @@ impl Averages {
                         .color(palette::SERIES[5])
                         .radius(2.5),
                 );
+                if !few.is_empty() {
+                    p.points(
+                        Points::new(
+                            format!("fewer than {MIN_BLOCKS_PLATEAU} blocks (noisy)"),
+                            PlotPoints::from(few.clone()),
+                        )
+                        .color(palette::ERROR_TEXT)
+                        .shape(egui_plot::MarkerShape::Cross)
+                        .radius(4.0),
+                    );
+                }
                 if plateau.is_finite() {
                     p.hline(
                         HLine::new(format!("plateau {}", format_number(plateau)), plateau)

@@ -329,6 +329,56 @@ mod tests {
     }
 
     #[test]
+    fn evidence_reaches_the_averages_and_met_targets_pause_with_a_message() {
+        use crate::analysis::{PrecisionTarget, Quantity, SampleStore, StartChoice, TargetProgress, analyse};
+        let s = argon();
+        let mut view = RunView::new(&s);
+        started(&mut view, &s, 500);
+        let mut store = SampleStore::new(64);
+        store.push(&Observables::default());
+        let report = crate::engine::EvidenceReport {
+            evidence: analyse(&store, StartChoice::FromTime(0.0), true),
+            precision: Vec::new(),
+            eos: None,
+            units: s.units(),
+            sample_every: 10,
+            step: 0,
+            analysis_seconds: 0.0,
+        };
+        reduce(&mut view, Event::Evidence(Box::new(report)));
+        let shown = view.averages.report().expect("the evidence is kept");
+        assert_eq!((shown.evidence.entries, shown.sample_every), (1, 10));
+        assert!(view.averages.is_manual());
+        view.status.status.running = true;
+        let bar = s.units().pressure_bar();
+        reduce(
+            &mut view,
+            Event::PrecisionReached(vec![TargetProgress {
+                target: PrecisionTarget {
+                    quantity: Quantity::Pressure,
+                    stderr: 2.0 / bar,
+                },
+                stderr: 1.5 / bar,
+                met: true,
+                samples_needed: Some(0),
+            }]),
+        );
+        assert!(!view.status.status.running, "the run shows as paused");
+        let m = view.status.message.as_ref().unwrap();
+        assert!(
+            m.text
+                .starts_with("Precision reached and paused: standard error of pressure 1.5 ≤ 2 bar"),
+            "{}",
+            m.text
+        );
+        started(&mut view, &s, 500);
+        assert!(
+            view.averages.report().is_none(),
+            "a new run forgets the old evidence"
+        );
+    }
+
+    #[test]
     fn a_finished_scan_names_the_recommended_timestep_in_the_setup_units() {
         let report = TuningReport {
             from_step: 0,

@@ -121,7 +121,13 @@ pub fn label_reference<R>(ui: &egui::Ui, plot: &PlotResponse<R>, r: &Reference) 
         } else {
             (-2.0, Align2::LEFT_BOTTOM)
         };
-        painter.text(egui::pos2(left, at(v) + dy), anchor, "equation of state", font.clone(), palette::EOS_LINE);
+        painter.text(
+            egui::pos2(left, at(v) + dy),
+            anchor,
+            "equation of state",
+            font.clone(),
+            palette::EOS_LINE,
+        );
     }
     if r.run_mean.is_finite() {
         let e = 2.0 * r.run_stderr.max(0.0);
@@ -130,7 +136,13 @@ pub fn label_reference<R>(ui: &egui::Ui, plot: &PlotResponse<R>, r: &Reference) 
         } else {
             (r.run_mean - e, 2.0, Align2::LEFT_TOP)
         };
-        painter.text(egui::pos2(left, at(y) + dy), anchor, "run, full potential ± 2 s.e.", font, palette::RUN_BAND);
+        painter.text(
+            egui::pos2(left, at(y) + dy),
+            anchor,
+            "run, full potential ± 2 s.e.",
+            font,
+            palette::RUN_BAND,
+        );
     }
 }
 

@@ -230,15 +230,18 @@ impl Plots {
         };
         // The width the caller measured before anything above could widen the ui.
         // Room for the caption under the plots (two small lines).
-        let caption = if marks.start.is_some() || marks.note.is_some() { 30.0 } else { 0.0 };
+        let caption = if marks.start.is_some() || marks.note.is_some() {
+            30.0
+        } else {
+            0.0
+        };
         let avail = egui::vec2(width.min(ui.available_width()), ui.available_height() - caption);
         let w = (avail.x - 8.0) / 2.0;
         let h = ((avail.y - 8.0) / 2.0).max(90.0);
         let target = self.target;
         let latest = self.last.map_or(0.0, |o| o.time * self.time_factor());
         let link = ui.scope_id().with("time-axis");
-        self.start_line.begin_frame();
-        let pan = !self.start_line.holds_pointer(ui, &self.start_drawn);
+        let pan = !self.start_line.begin_frame(ui, &self.start_drawn);
         let plot = |name: &str, ylabel: String, range: Option<(f64, f64)>| {
             let mut plot = Plot::new(name.to_string())
                 .width(w)
@@ -391,6 +394,7 @@ impl Plots {
         if caption > 0.0 {
             marks.caption(ui);
         }
+        self.start_line.end_frame(ui);
         self.start_drawn = self.start_line.drawn();
         drag
     }

@@ -27,18 +27,29 @@ pub struct StartLine {
 }
 
 impl StartLine {
-    /// Call before drawing the plots of a frame.
-    pub fn begin_frame(&mut self) {
+    /// Call before drawing the plots of a frame, with where the line was drawn in the last
+    /// one: a press near it takes hold of the line. Returns whether the plots should not pan
+    /// this frame (the line is held, or the pointer is near it).
+    pub fn begin_frame(&mut self, ui: &egui::Ui, previous: &[(egui::Rect, f32)]) -> bool {
         self.drawn.clear();
+        let (pressed, origin, hover) = ui.input(|i| {
+            (
+                i.pointer.primary_pressed(),
+                i.pointer.press_origin(),
+                i.pointer.hover_pos(),
+            )
+        });
+        if pressed && origin.is_some_and(|p| near(previous, p)) {
+            self.grabbed = true;
+        }
+        self.grabbed || hover.is_some_and(|p| near(previous, p))
     }
 
-    /// Whether a plot should not pan this frame: the line is held, or the pointer is near it
-    /// (as it was drawn in the last frame).
-    pub fn holds_pointer(&self, ui: &egui::Ui, previous: &[(egui::Rect, f32)]) -> bool {
-        self.grabbed
-            || ui
-                .input(|i| i.pointer.hover_pos())
-                .is_some_and(|p| near(previous, p))
+    /// Call after drawing the plots of a frame: a released button lets go of the line.
+    pub fn end_frame(&mut self, ui: &egui::Ui) {
+        if !ui.input(|i| i.pointer.primary_down()) {
+            self.grabbed = false;
+        }
     }
 
     /// The line's positions drawn this frame (the next frame's `previous`).
@@ -69,15 +80,18 @@ impl StartLine {
             let dim = egui::Rect::from_min_max(frame.min, egui::pos2(x.min(frame.right()), frame.max.y));
             painter.rect_filled(dim, 0.0, palette::BEFORE_START);
         }
-        // Labelled at the bottom, clear of the legends at the top; to the line's left near the
-        // right edge.
-        let (lx, anchor) = if x > frame.right() - 100.0 {
-            (x - 4.0, egui::Align2::RIGHT_BOTTOM)
+        // Labelled at the top beside the line, on its right in the left part of the plot (the
+        // legends sit at the top right), on its left at the bottom further right.
+        let (pos, anchor) = if x < frame.center().x {
+            (egui::pos2(x + 4.0, frame.top() + 2.0), egui::Align2::LEFT_TOP)
         } else {
-            (x + 4.0, egui::Align2::LEFT_BOTTOM)
+            (
+                egui::pos2(x - 4.0, frame.bottom() - 2.0),
+                egui::Align2::RIGHT_BOTTOM,
+            )
         };
         painter.text(
-            egui::pos2(lx, frame.bottom() - 2.0),
+            pos,
             anchor,
             if manual { "from (set)" } else { "from (detected)" },
             egui::FontId::proportional(11.0),
@@ -94,19 +108,11 @@ impl StartLine {
         {
             ui.ctx().set_cursor_icon(egui::CursorIcon::ResizeHorizontal);
         }
-        if r.drag_started()
-            && ui
-                .input(|i| i.pointer.press_origin())
-                .is_some_and(|p| near(&here, p))
-        {
-            self.grabbed = true;
-        }
         if !self.grabbed {
             return None;
         }
         let at = |p: egui::Pos2| plot.transform.value_from_position(p).x;
         if r.drag_stopped() {
-            self.grabbed = false;
             let p = ui.input(|i| i.pointer.interact_pos())?;
             return Some(StartDrag::Released(at(p)));
         }
