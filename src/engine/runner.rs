@@ -28,10 +28,10 @@ const BATCH: Duration = Duration::from_millis(15);
 const STATUS_EVERY: Duration = Duration::from_millis(250);
 /// Least time between two refreshes of the evidence while running.
 const EVIDENCE_EVERY: Duration = Duration::from_secs(1);
-/// While running, the evidence is refreshed no more often than this many times its last cost,
-/// so the analysis takes at most 1/EVIDENCE_COST_SHARE of the engine thread even on runs whose
-/// analysis takes longer than expected.
-const EVIDENCE_COST_SHARE: u32 = 50;
+/// While running, the evidence is refreshed no more often than once per this many times its
+/// last cost, so the analysis takes at most 1/EVIDENCE_COST_SHARE (5 %) of the engine thread
+/// even where it takes longer than expected (a loaded machine, a long run).
+const EVIDENCE_COST_SHARE: u32 = 20;
 
 /// Why the engine refused a command (sent on as [`Event::Rejected`] with its message).
 #[derive(Debug, thiserror::Error)]
