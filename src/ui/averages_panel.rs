@@ -97,7 +97,7 @@ impl Averages {
         ));
         ui.add_space(4.0);
         // The start: typed, dragged on the plots, or automatic.
-        ui.horizontal(|ui| {
+        ui.horizontal_wrapped(|ui| {
             let l = ui.label(format!("Average from [{tu}]"));
             let field = ui
                 .add(egui::TextEdit::singleline(&mut self.typed).desired_width(80.0))

@@ -70,10 +70,9 @@ impl PlotMarks {
         });
         m.note = match eos.hidden {
             Some(h) => Some(format!("Equation of state {}", h.words())),
-            None if r.units.has_real_units() => Some(
-                "Equation-of-state line: a Lennard-Jones model value; the model only approximates the real gas."
-                    .into(),
-            ),
+            None if r.units.has_real_units() => {
+                Some("Model values: the Lennard-Jones model only approximates the real gas.".into())
+            }
             None => None,
         };
         m
@@ -121,8 +120,9 @@ pub fn label_reference<R>(ui: &egui::Ui, plot: &PlotResponse<R>, r: &Reference) 
         } else {
             (-2.0, Align2::LEFT_BOTTOM)
         };
+        let (y, anchor) = inside(frame, at(v) + dy, anchor);
         painter.text(
-            egui::pos2(left, at(v) + dy),
+            egui::pos2(left, y),
             anchor,
             "equation of state",
             font.clone(),
@@ -136,13 +136,26 @@ pub fn label_reference<R>(ui: &egui::Ui, plot: &PlotResponse<R>, r: &Reference) 
         } else {
             (r.run_mean - e, 2.0, Align2::LEFT_TOP)
         };
+        let (y, anchor) = inside(frame, at(y) + dy, anchor);
         painter.text(
-            egui::pos2(left, at(y) + dy),
+            egui::pos2(left, y),
             anchor,
             "run, full potential ± 2 s.e.",
             font,
             palette::RUN_BAND,
         );
+    }
+}
+
+/// A label's y and anchor, flipped to the line's other side where it would leave the frame.
+fn inside(frame: egui::Rect, y: f32, anchor: Align2) -> (f32, Align2) {
+    const HEIGHT: f32 = 14.0;
+    if anchor == Align2::LEFT_BOTTOM && y - HEIGHT < frame.top() {
+        (y + 4.0, Align2::LEFT_TOP)
+    } else if anchor == Align2::LEFT_TOP && y + HEIGHT > frame.bottom() {
+        (y - 4.0, Align2::LEFT_BOTTOM)
+    } else {
+        (y, anchor)
     }
 }
 
@@ -154,17 +167,17 @@ impl PlotMarks {
             let small = |t: &str| egui::RichText::new(t.to_string()).small();
             if self.start.is_some() {
                 ui.label(
-                    small("Cyan line: averages are taken from here (drag it, or type a time in Averages); the dimmed part before it is left out. ")
+                    small("Cyan line: averages start here (drag it, or type a time in Averages); the dimmed part is left out. ")
                         .color(palette::START_LINE),
                 );
             }
             if self.pressure.is_some() {
                 ui.label(
-                    small("Dashed white: Lennard-Jones equation of state (full potential). ")
+                    small("Dashed white: equation of state (full potential). ")
                         .color(palette::EOS_LINE),
                 );
                 ui.label(
-                    small("Orange: the run's full-potential mean, dotted ± 2 standard errors. ")
+                    small("Orange: the run's full-potential mean, dotted ± 2 s.e. ")
                         .color(palette::RUN_BAND),
                 );
             }

@@ -8,7 +8,7 @@ use super::plot_marks::{PlotMarks, add_reference, label_reference};
 use super::series::{EnvelopeSeries, ThinnedLog};
 use super::start_line::{StartDrag, StartLine};
 use crate::physics::{Observables, UnitSystem};
-use egui_plot::{GridInput, GridMark, HLine, Legend, Line, Plot, PlotPoints};
+use egui_plot::{AxisHints, GridInput, GridMark, HLine, Legend, Line, Plot, PlotPoints};
 
 /// Grid marks at 1, 2 or 5 × 10ⁿ, about five labelled lines across the range, and no finer
 /// lines: the default powers-of-ten spacing leaves short plots with a single label, and every
@@ -246,7 +246,14 @@ impl Plots {
             let mut plot = Plot::new(name.to_string())
                 .width(w)
                 .height(h)
-                .x_axis_label(format!("time [{tu}]"))
+                // Time ticks are short ("10", "0.05"): labelled down to 32 points apart, where the
+                // default wants 60 and leaves narrow plots (a side panel open) without any.
+                .custom_x_axes(vec![
+                    AxisHints::new_x()
+                        .label(format!("time [{tu}]"))
+                        .formatter(|m, _| tick_label(m))
+                        .label_spacing(32.0..=44.0),
+                ])
                 .y_axis_label(ylabel)
                 .legend(Legend::default())
                 .link_axis(link, [true, false])
@@ -257,7 +264,6 @@ impl Plots {
                 .show_background(false)
                 .y_grid_spacer(nice_grid)
                 .x_grid_spacer(nice_grid)
-                .x_axis_formatter(|m, _| tick_label(m))
                 .y_axis_formatter(|m, _| tick_label(m));
             if let Some((lo, hi)) = range {
                 plot = plot.include_y(lo).include_y(hi);
@@ -392,7 +398,11 @@ impl Plots {
             }
         });
         if caption > 0.0 {
-            marks.caption(ui);
+            // Wrapped to the measured width: the ui itself may reach under a side panel.
+            ui.scope(|ui| {
+                ui.set_max_width(avail.x);
+                marks.caption(ui);
+            });
         }
         self.start_line.end_frame(ui);
         self.start_drawn = self.start_line.drawn();
