@@ -45,6 +45,9 @@ shot view-3d assets/krypton-getter-sample.ron 90 3d
 shot view-slab assets/krypton-getter-sample.ron 90 slab
 shot view-setup assets/krypton-getter-sample.ron 60 setup
 shot view-tuning assets/krypton-getter-sample.ron 60 tuning
+# The Averages panel after the whole run (30 000 steps, where it pauses): the verdict has gone
+# from "not yet" to "equilibrated".
+shot statistics-panel assets/argon-liquid-averages.ron 2400 averages
 if [[ "${SKIP_PERF:-0}" != 1 ]]; then
     # The machine's own speed drifts (a shared virtual machine varied by ±25 % within minutes),
     # so the window is timed in PAIRS interleaved pairs, each beside a headless run of the same
@@ -71,7 +74,7 @@ print(f"32k atoms, {pairs} pairs: frame p95 median {statistics.median(p95s):.1f}
 PY
 fi
 
-pngs=("$out"/view-3d.png "$out"/view-slab.png "$out"/view-setup.png "$out"/view-tuning.png)
+pngs=("$out"/view-3d.png "$out"/view-slab.png "$out"/view-setup.png "$out"/view-tuning.png "$out"/statistics-panel.png)
 [[ "${SKIP_PERF:-0}" == 1 ]] || pngs+=("$out"/perf-32k-3d-1.png)
 python3 scripts/check_png.py "${pngs[@]}" || fail=1
 if [[ $fail != 0 ]]; then

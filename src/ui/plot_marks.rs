@@ -114,6 +114,7 @@ pub fn label_reference<R>(ui: &egui::Ui, plot: &PlotResponse<R>, r: &Reference) 
     let run_above = r.equation.is_none_or(|v| r.run_mean >= v);
     let font = egui::FontId::proportional(11.0);
     let left = frame.left() + 4.0;
+    let mut equation_label: Option<egui::Rect> = None;
     if let Some(v) = r.equation {
         let (dy, anchor) = if run_above {
             (2.0, Align2::LEFT_TOP)
@@ -121,13 +122,13 @@ pub fn label_reference<R>(ui: &egui::Ui, plot: &PlotResponse<R>, r: &Reference) 
             (-2.0, Align2::LEFT_BOTTOM)
         };
         let (y, anchor) = inside(frame, at(v) + dy, anchor);
-        painter.text(
+        equation_label = Some(painter.text(
             egui::pos2(left, y),
             anchor,
             "equation of state",
             font.clone(),
             palette::EOS_LINE,
-        );
+        ));
     }
     if r.run_mean.is_finite() {
         let e = 2.0 * r.run_stderr.max(0.0);
@@ -137,13 +138,15 @@ pub fn label_reference<R>(ui: &egui::Ui, plot: &PlotResponse<R>, r: &Reference) 
             (r.run_mean - e, 2.0, Align2::LEFT_TOP)
         };
         let (y, anchor) = inside(frame, at(y) + dy, anchor);
-        painter.text(
-            egui::pos2(left, y),
-            anchor,
-            "run, full potential ± 2 s.e.",
-            font,
-            palette::RUN_BAND,
-        );
+        let galley = painter.layout_no_wrap("run, full potential ± 2 s.e.".into(), font, palette::RUN_BAND);
+        let mut rect = anchor.anchor_size(egui::pos2(left, y), galley.size());
+        // Where both lines lie close together, side by side instead of on top of each other.
+        if let Some(e) = equation_label
+            && e.intersects(rect)
+        {
+            rect = rect.translate(egui::vec2(e.right() + 12.0 - rect.left(), 0.0));
+        }
+        painter.galley(rect.min, galley, palette::RUN_BAND);
     }
 }
 
