@@ -197,7 +197,7 @@ impl SampleStore {
     /// the width, and a raw count that adds up.
     pub fn from_parts(p: StoreParts) -> Result<SampleStore, String> {
         let n = p.steps.len();
-        if !(4..=DEFAULT_CAPACITY).contains(&p.capacity) || p.capacity % 2 != 0 {
+        if !(4..=DEFAULT_CAPACITY).contains(&p.capacity) || !p.capacity.is_multiple_of(2) {
             return Err(format!(
                 "capacity {} (allowed: an even number from 4 to {DEFAULT_CAPACITY})",
                 p.capacity

@@ -134,19 +134,17 @@ impl NoblescopeApp {
                 ui.separator();
                 let marks = PlotMarks::of(&self.run.averages);
                 match self.run.plots.show(ui, w, &marks) {
-                    Some(StartDrag::Moved(t)) => {
-                        if self.run.averages.dragged != Some(t) {
-                            self.run.averages.dragged = Some(t);
-                            let c = self.run.averages.ask_dragged(t);
-                            self.send(c);
-                        }
+                    Some(StartDrag::Moved(t)) if self.run.averages.dragged != Some(t) => {
+                        self.run.averages.dragged = Some(t);
+                        let c = self.run.averages.ask_dragged(t);
+                        self.send(c);
                     }
                     Some(StartDrag::Released(t)) => {
                         self.run.averages.dragged = None;
                         let c = self.run.averages.ask_dragged(t);
                         self.send(c);
                     }
-                    None => {}
+                    Some(StartDrag::Moved(_)) | None => {}
                 }
             });
         help::show(&ctx, &mut self.help_open);
