@@ -106,15 +106,15 @@ pub fn add_reference(p: &mut PlotUi<'_>, r: &Reference) {
 }
 
 /// Labels a reference's lines at the left edge of the plot shown (in the dimmed part before
-/// the start, clear of the legend), the equation's on the side away from the run's.
-pub fn label_reference<R>(ui: &egui::Ui, plot: &PlotResponse<R>, r: &Reference) {
+/// the start, clear of the legend), the equation's on the side away from the run's; a label
+/// that would cover `avoid` (the start line's label) or the other label is stacked beside it.
+pub fn label_reference<R>(ui: &egui::Ui, plot: &PlotResponse<R>, r: &Reference, avoid: Option<egui::Rect>) {
     let frame = *plot.transform.frame();
     let painter = ui.painter_at(frame);
     let at = |y: f64| plot.transform.position_from_point_y(y);
     let run_above = r.equation.is_none_or(|v| r.run_mean >= v);
-    let font = egui::FontId::proportional(11.0);
     let left = frame.left() + 4.0;
-    let mut equation_label: Option<egui::Rect> = None;
+    let mut taken: Vec<egui::Rect> = avoid.into_iter().collect();
     if let Some(v) = r.equation {
         let (dy, anchor) = if run_above {
             (2.0, Align2::LEFT_TOP)
@@ -122,13 +122,16 @@ pub fn label_reference<R>(ui: &egui::Ui, plot: &PlotResponse<R>, r: &Reference) 
             (-2.0, Align2::LEFT_BOTTOM)
         };
         let (y, anchor) = inside(frame, at(v) + dy, anchor);
-        equation_label = Some(painter.text(
+        let rect = place(
+            &painter,
+            frame,
+            "equation of state",
+            palette::EOS_LINE,
             egui::pos2(left, y),
             anchor,
-            "equation of state",
-            font.clone(),
-            palette::EOS_LINE,
-        ));
+            &taken,
+        );
+        taken.push(rect);
     }
     if r.run_mean.is_finite() {
         let e = 2.0 * r.run_stderr.max(0.0);
@@ -138,16 +141,44 @@ pub fn label_reference<R>(ui: &egui::Ui, plot: &PlotResponse<R>, r: &Reference) 
             (r.run_mean - e, 2.0, Align2::LEFT_TOP)
         };
         let (y, anchor) = inside(frame, at(y) + dy, anchor);
-        let galley = painter.layout_no_wrap("run, full potential ± 2 s.e.".into(), font, palette::RUN_BAND);
-        let mut rect = anchor.anchor_size(egui::pos2(left, y), galley.size());
-        // Where both lines lie close together, side by side instead of on top of each other.
-        if let Some(e) = equation_label
-            && e.intersects(rect)
-        {
-            rect = rect.translate(egui::vec2(e.right() + 12.0 - rect.left(), 0.0));
-        }
-        painter.galley(rect.min, galley, palette::RUN_BAND);
+        place(
+            &painter,
+            frame,
+            "run, full potential ± 2 s.e.",
+            palette::RUN_BAND,
+            egui::pos2(left, y),
+            anchor,
+            &taken,
+        );
     }
+}
+
+/// Paints `text` small at `pos`, moved under (or over) any of `taken` it would cover, inside
+/// `frame`; returns where.
+fn place(
+    painter: &egui::Painter,
+    frame: egui::Rect,
+    text: &str,
+    colour: egui::Color32,
+    pos: egui::Pos2,
+    anchor: Align2,
+    taken: &[egui::Rect],
+) -> egui::Rect {
+    let galley = painter.layout_no_wrap(text.into(), egui::FontId::proportional(11.0), colour);
+    let mut rect = anchor.anchor_size(pos, galley.size());
+    for t in taken {
+        if t.intersects(rect) {
+            // Stacked under the label in the way, or above it where that leaves the frame.
+            let below = rect.translate(egui::vec2(0.0, t.bottom() + 1.0 - rect.top()));
+            rect = if below.bottom() <= frame.bottom() {
+                below
+            } else {
+                rect.translate(egui::vec2(0.0, t.top() - 1.0 - rect.bottom()))
+            };
+        }
+    }
+    painter.galley(rect.min, galley, colour);
+    rect
 }
 
 /// A label's y and anchor, flipped to the line's other side where it would leave the frame.

@@ -355,7 +355,7 @@ impl Plots {
             });
             follow(ui, &r, start_line);
             if let Some(m) = &marks.energy {
-                label_reference(ui, &r, m);
+                label_reference(ui, &r, m, start_line.label_rect());
             }
         });
         ui.horizontal(|ui| {
@@ -394,7 +394,7 @@ impl Plots {
             });
             follow(ui, &r, start_line);
             if let Some(m) = &marks.pressure {
-                label_reference(ui, &r, m);
+                label_reference(ui, &r, m, start_line.label_rect());
             }
         });
         if caption > 0.0 {

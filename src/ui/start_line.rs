@@ -24,6 +24,8 @@ pub struct StartLine {
     grabbed: bool,
     /// Each time plot's frame and the line's screen x, as last drawn.
     drawn: Vec<(egui::Rect, f32)>,
+    /// Where the last plot's line label was painted (other labels keep clear of it).
+    label: Option<egui::Rect>,
 }
 
 impl StartLine {
@@ -52,6 +54,11 @@ impl StartLine {
         }
     }
 
+    /// Where the line's label was painted on the plot last shown, if it was.
+    pub fn label_rect(&self) -> Option<egui::Rect> {
+        self.label
+    }
+
     /// The line's positions drawn this frame (the next frame's `previous`).
     pub fn drawn(&self) -> Vec<(egui::Rect, f32)> {
         self.drawn.clone()
@@ -72,6 +79,7 @@ impl StartLine {
         start: Option<f64>,
         manual: bool,
     ) -> Option<StartDrag> {
+        self.label = None;
         let start = start?;
         let frame = *plot.transform.frame();
         let x = plot.transform.position_from_point_x(start);
@@ -90,13 +98,13 @@ impl StartLine {
                 egui::Align2::RIGHT_BOTTOM,
             )
         };
-        painter.text(
+        self.label = Some(painter.text(
             pos,
             anchor,
             if manual { "from (set)" } else { "from (detected)" },
             egui::FontId::proportional(11.0),
             palette::START_LINE,
-        );
+        ));
         self.drawn.push((frame, x));
         let r = &plot.response;
         let here = [(frame, x)];
