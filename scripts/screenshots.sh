@@ -52,6 +52,9 @@ sed -e 's/equilibration_steps: 15000,/equilibration_steps: 0,/' -e 's/steps: 150
     -e 's/^    steps: 30000,/    steps: 100000,/' assets/xenon-crystal-melting.ron >"$melt"
 shot view-structure "$melt" 1600 structure
 rm -f "$melt"
+# The Averages panel after the whole run (30 000 steps, where it pauses): the verdict has gone
+# from "not yet" to "equilibrated".
+shot statistics-panel assets/argon-liquid-averages.ron 2400 averages
 if [[ "${SKIP_PERF:-0}" != 1 ]]; then
     # The machine's own speed drifts (a shared virtual machine varied by ±25 % within minutes),
     # so the window is timed in PAIRS interleaved pairs, each beside a headless run of the same
@@ -78,7 +81,7 @@ print(f"32k atoms, {pairs} pairs: frame p95 median {statistics.median(p95s):.1f}
 PY
 fi
 
-pngs=("$out"/view-3d.png "$out"/view-slab.png "$out"/view-setup.png "$out"/view-tuning.png "$out"/view-structure.png)
+pngs=("$out"/view-3d.png "$out"/view-slab.png "$out"/view-setup.png "$out"/view-tuning.png "$out"/view-structure.png "$out"/statistics-panel.png)
 [[ "${SKIP_PERF:-0}" == 1 ]] || pngs+=("$out"/perf-32k-3d-1.png)
 python3 scripts/check_png.py "${pngs[@]}" || fail=1
 if [[ $fail != 0 ]]; then

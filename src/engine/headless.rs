@@ -6,7 +6,7 @@ use super::recovery::{MAX_RECOVERIES, Outputs, SNAPSHOT_EVERY, Snapshot, alarm_s
 use super::session::Session;
 use super::watchdog::Alarm;
 use crate::analysis::StartChoice;
-use crate::analysis::eos_reference::{self, RunState};
+use crate::analysis::eos_reference;
 use crate::analysis::precision;
 use crate::io::analysis_files::{analysis_files, species_labels};
 use crate::io::energy_log::EnergyLog;
@@ -14,7 +14,6 @@ use crate::io::run_folder::{self, FolderError, StagedRun};
 use crate::io::setup::Setup;
 use crate::io::summary::{RunFacts, StopReason, Summary};
 use crate::io::trajectory;
-use crate::physics::PotentialMode;
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use std::io::{BufWriter, IsTerminal, Write};
 use std::path::{Path, PathBuf};
@@ -274,18 +273,9 @@ pub fn run(mut session: Session, fresh: bool, opts: &HeadlessOptions) -> Result<
     }
     let sim = session.simulation();
     let evidence = session.evidence(StartChoice::Automatic);
-    let spec = sim.spec();
-    let equation_of_state = (spec.kinds.len() == 1).then(|| {
-        eos_reference::compare(
-            &evidence,
-            RunState {
-                density: sim.system().density(),
-                bath_temperature: session.thermostatted().then_some(spec.temperature),
-                single_species: true,
-                shifted_force: spec.potential == PotentialMode::ShiftedForce,
-            },
-        )
-    });
+    let equation_of_state = session
+        .eos_run_state()
+        .map(|state| eos_reference::compare(&evidence, state));
     let summary = Summary::new(
         session.samples(),
         &evidence,

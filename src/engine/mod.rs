@@ -20,7 +20,9 @@ pub mod watchdog;
 
 pub use flight_recorder::FlightRecord;
 pub use frame::{Frame, FrameMailbox};
-pub use protocol::{AnalysesReport, AnalysisFile, Command, CommandKind, Event, SnapshotMark, Status};
+pub use protocol::{
+    AnalysesReport, AnalysisFile, Command, CommandKind, Event, EvidenceReport, SnapshotMark, Status,
+};
 pub use runner::{EngineHandle, Refusal};
 pub use session::Session;
 pub use tuning::{TuneError, TuneInput, TuneRequest, TuningReport};

@@ -7,8 +7,10 @@ use super::flight_recorder::FlightRecord;
 use super::tuning::{TuneRequest, TuningReport};
 use super::watchdog::Alarm;
 use crate::analysis::Estimate;
+use crate::analysis::eos_reference::EosComparison;
+use crate::analysis::{Evidence, StartChoice, TargetProgress};
 use crate::io::setup::{Duration, Ensemble, Length, Setup, Temperature};
-use crate::physics::{Observables, PotentialMode};
+use crate::physics::{Observables, PotentialMode, UnitSystem};
 use std::path::PathBuf;
 
 /// What the window asks of the engine.
@@ -64,6 +66,9 @@ pub enum Command {
     SetFitWindow(Option<[f64; 2]>),
     /// Write one analysis as CSV (the same text as the headless run's file).
     SaveAnalysis { file: AnalysisFile, path: PathBuf },
+    /// Take averages from this start (the detected one, or a time in τ the user set); answered
+    /// at once with [`Event::Evidence`].
+    SetAverageStart(StartChoice),
     /// End the engine thread.
     Shutdown,
 }
@@ -219,6 +224,31 @@ pub enum Event {
         /// The setup's `steps`.
         steps: u64,
     },
+    /// The equilibration evidence of the run so far: about once a second while running, and
+    /// at once after [`Command::SetAverageStart`], a start, a rewind or a pause.
+    Evidence(Box<EvidenceReport>),
+    /// Every precision target of the setup was met after the equilibration start and the run
+    /// paused there; a further [`Command::Run`] goes on without stopping for them again.
+    PrecisionReached(Vec<TargetProgress>),
+}
+
+/// The equilibration evidence with what the window needs to show it.
+#[derive(Clone, Debug, PartialEq)]
+pub struct EvidenceReport {
+    /// Statistics, verdicts and the start they were taken from (reduced units, times in τ).
+    pub evidence: Evidence,
+    /// Each precision target of the setup against the evidence.
+    pub precision: Vec<TargetProgress>,
+    /// The equation of state beside the run's full-potential estimates; `None` for mixtures.
+    pub eos: Option<EosComparison>,
+    /// Units of the run's reference species, for showing values in the setup's units.
+    pub units: UnitSystem,
+    /// Steps between samples (raw samples needed × this = steps needed).
+    pub sample_every: u64,
+    /// The step the evidence reaches.
+    pub step: u64,
+    /// Wall time the analysis took, seconds.
+    pub analysis_seconds: f64,
 }
 
 /// Which command an event answers: [`Command::kind`], and [`CommandKind::Start`] for the
@@ -261,6 +291,8 @@ pub enum CommandKind {
     SetFitWindow,
     /// [`Command::SaveAnalysis`].
     SaveAnalysis,
+    /// [`Command::SetAverageStart`].
+    SetAverageStart,
     /// [`Command::Shutdown`].
     Shutdown,
 }
@@ -287,6 +319,7 @@ impl CommandKind {
             CommandKind::ResetAnalyses => "ResetAnalyses",
             CommandKind::SetFitWindow => "SetFitWindow",
             CommandKind::SaveAnalysis => "SaveAnalysis",
+            CommandKind::SetAverageStart => "SetAverageStart",
             CommandKind::Shutdown => "Shutdown",
         }
     }
@@ -327,6 +360,7 @@ impl Command {
             Command::ResetAnalyses => CommandKind::ResetAnalyses,
             Command::SetFitWindow(_) => CommandKind::SetFitWindow,
             Command::SaveAnalysis { .. } => CommandKind::SaveAnalysis,
+            Command::SetAverageStart(_) => CommandKind::SetAverageStart,
             Command::Shutdown => CommandKind::Shutdown,
         }
     }

@@ -7,12 +7,13 @@
 use super::flight_recorder::FlightRecorder;
 use super::frame::{Frame, FrameMailbox};
 use super::live_analyses::LiveAnalyses;
-use super::protocol::{Command, CommandKind, Event, SnapshotMark, Status};
+use super::protocol::{Command, CommandKind, Event, EvidenceReport, SnapshotMark, Status};
 use super::recovery::MAX_RECOVERIES;
 use super::rewind::RewindBuffer;
 use super::session::Session;
 use super::tuning::{self, TuneError, TuneRequest, TuneUnits, TuningReport};
 use super::watchdog::Alarm;
+use crate::analysis::{StartChoice, eos_reference, precision};
 use crate::io::checkpoint::{Checkpoint, CheckpointError};
 use crate::io::setup::{Setup, SetupError};
 use crate::physics::{SimulationSpec, SimulationState, SpecError};
@@ -30,6 +31,12 @@ const BATCH: Duration = Duration::from_millis(15);
 const STATUS_EVERY: Duration = Duration::from_millis(250);
 /// How often the structure and motion analyses are reported while a run goes.
 const ANALYSES_EVERY: Duration = Duration::from_millis(500);
+/// Least time between two refreshes of the evidence while running.
+const EVIDENCE_EVERY: Duration = Duration::from_secs(1);
+/// While running, the evidence is refreshed no more often than once per this many times its
+/// last cost, so the analysis takes at most 1/EVIDENCE_COST_SHARE (5 %) of the engine thread
+/// even where it takes longer than expected (a loaded machine, a long run).
+const EVIDENCE_COST_SHARE: u32 = 20;
 
 /// Why the engine refused a command (sent on as [`Event::Rejected`] with its message).
 #[derive(Debug, thiserror::Error)]
@@ -167,6 +174,15 @@ struct Engine {
     /// The structure and motion analyses, while the window watches them.
     analyses: Option<LiveAnalyses>,
     last_analyses: Instant,
+    /// Whether the run still pauses when its precision targets are met (once per start).
+    stop_at_precision: bool,
+    /// Where the averages start, as the window last asked.
+    average_start: StartChoice,
+    /// The evidence should go out as soon as the commands waiting are read.
+    evidence_due: bool,
+    /// When the evidence last went out, and the least time until the next refresh.
+    last_evidence: Instant,
+    evidence_every: Duration,
 }
 
 /// A tuning scan on its own thread, working on copies of the state.
@@ -232,6 +248,11 @@ impl Engine {
             stop_at_steps: true,
             analyses: None,
             last_analyses: Instant::now(),
+            stop_at_precision: true,
+            average_start: StartChoice::Automatic,
+            evidence_due: true,
+            last_evidence: Instant::now(),
+            evidence_every: EVIDENCE_EVERY,
         }
     }
 
@@ -282,6 +303,10 @@ impl Engine {
         self.recoveries = 0;
         self.last_alarm = None;
         self.stop_at_steps = session.simulation().step_count() < session.setup().steps;
+        self.stop_at_precision = true;
+        // A manual start belongs to the run it was set on.
+        self.average_start = StartChoice::Automatic;
+        self.evidence_due = true;
         self.emit(Event::Started {
             setup: Box::new(session.setup().clone()),
             atoms: session.simulation().system().len(),
@@ -361,8 +386,8 @@ impl Engine {
         self.start(&session);
         loop {
             self.poll_tune();
-            // Read commands: wait while paused, only peek while running.
-            let cmd = if self.running {
+            // Read commands: wait while paused, only peek while running or while evidence is due.
+            let cmd = if self.running || self.evidence_due {
                 self.commands.try_recv().ok()
             } else {
                 match self.commands.recv_timeout(Duration::from_millis(50)) {
@@ -403,7 +428,33 @@ impl Engine {
             if self.running && self.analyses.is_some() && self.last_analyses.elapsed() >= ANALYSES_EVERY {
                 self.send_analyses(&session);
             }
+            if self.evidence_due || (self.running && self.last_evidence.elapsed() >= self.evidence_every) {
+                self.send_evidence(&session);
+            }
         }
+    }
+
+    /// Analyses the samples from the chosen start and sends the evidence.
+    fn send_evidence(&mut self, session: &Session) {
+        let started = Instant::now();
+        let evidence = session.evidence(self.average_start);
+        let precision = precision::progress(&evidence, session.precision_targets());
+        let eos = session
+            .eos_run_state()
+            .map(|state| eos_reference::compare(&evidence, state));
+        let cost = started.elapsed();
+        self.evidence_every = EVIDENCE_EVERY.max(cost * EVIDENCE_COST_SHARE);
+        self.emit(Event::Evidence(Box::new(EvidenceReport {
+            evidence,
+            precision,
+            eos,
+            units: session.units(),
+            sample_every: session.setup().sample_every,
+            step: session.simulation().step_count(),
+            analysis_seconds: cost.as_secs_f64(),
+        })));
+        self.evidence_due = false;
+        self.last_evidence = Instant::now();
     }
 
     fn advance(&mut self, session: &mut Session) {
@@ -422,10 +473,20 @@ impl Engine {
             let record = self.recorder.take(session.simulation());
             self.emit(Event::FlightRecord(Box::new(record)));
             self.send_status(session);
+            self.evidence_due = true;
             return;
         }
         if let Some(a) = self.analyses.as_mut() {
             a.after_step(session);
+        }
+        if let Some(met) = out.precision_met
+            && self.stop_at_precision
+        {
+            self.stop_at_precision = false;
+            self.running = false;
+            self.emit(Event::PrecisionReached(met));
+            self.send_status(session);
+            self.evidence_due = true;
         }
         let step = session.simulation().step_count();
         if FlightRecorder::due(step) {
@@ -441,6 +502,7 @@ impl Engine {
             self.running = false;
             self.emit(Event::ReachedSteps { steps });
             self.send_status(session);
+            self.evidence_due = true;
         }
     }
 
@@ -513,6 +575,7 @@ impl Engine {
             }),
             Command::Pause => {
                 self.running = false;
+                self.evidence_due = true;
                 Ok(())
             }
             Command::StepOnce => {
@@ -520,7 +583,13 @@ impl Engine {
                 self.check_not_blown_up("stepping").map(|()| {
                     self.advance(session);
                     self.publish_frame(session, true);
+                    self.evidence_due = true;
                 })
+            }
+            Command::SetAverageStart(choice) => {
+                self.average_start = choice;
+                self.evidence_due = true;
+                Ok(())
             }
             Command::Apply(setup) => {
                 let new = Session::new(*setup).map_err(Refusal::from);
@@ -592,9 +661,13 @@ impl Engine {
             Command::SetThermostat {
                 ensemble,
                 temperature,
-            } => session
-                .set_thermostat(ensemble, temperature)
-                .map_err(Refusal::from),
+            } => {
+                // The bath decides which quantities relax, and the equation of state's temperature.
+                self.evidence_due = true;
+                session
+                    .set_thermostat(ensemble, temperature)
+                    .map_err(Refusal::from)
+            }
             Command::SaveCheckpoint(path) => {
                 session.checkpoint().save(&path).map_err(Refusal::from).map(|()| {
                     self.emit(Event::Saved(path));
@@ -644,6 +717,7 @@ impl Engine {
         self.recorder.record(session.simulation());
         self.running = false;
         self.last_alarm = None;
+        self.evidence_due = true;
         self.emit(Event::Rewound {
             step: session.simulation().step_count(),
             time_tau: session.simulation().time(),

@@ -2,6 +2,7 @@
 //! and the headless runner both drive a session, so they step and sample identically.
 
 use super::watchdog::{Alarm, Watchdog, non_finite};
+use crate::analysis::eos_reference::RunState;
 use crate::analysis::precision::{self, PrecisionTarget, TargetProgress};
 use crate::analysis::{Evidence, SampleStore, StartChoice, analyse};
 use crate::io::checkpoint::Checkpoint;
@@ -181,6 +182,18 @@ impl Session {
     /// The equilibration evidence of the run so far.
     pub fn evidence(&self, choice: StartChoice) -> Evidence {
         analyse(&self.samples, choice, self.thermostatted())
+    }
+
+    /// What the equation-of-state comparison needs to know of the run; `None` for mixtures,
+    /// which the equation does not describe.
+    pub fn eos_run_state(&self) -> Option<RunState> {
+        let spec = self.sim.spec();
+        (spec.kinds.len() == 1).then(|| RunState {
+            density: self.sim.system().density(),
+            bath_temperature: self.thermostatted().then_some(spec.temperature),
+            single_species: true,
+            shifted_force: spec.potential == PotentialMode::ShiftedForce,
+        })
     }
 
     /// The sample of the present state.

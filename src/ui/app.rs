@@ -43,6 +43,7 @@ pub struct NoblescopeApp {
     /// Whether the "Structure and motion" panel is open, and whether the engine was told so.
     pub(super) structure_open: bool,
     pub(super) analyses_watched: bool,
+    pub(super) averages_open: bool,
     /// Start a scan of the default lists once the engine runs (`--view tuning`).
     pub(super) tune_at_start: bool,
     pub(super) help_open: bool,
@@ -70,6 +71,7 @@ impl NoblescopeApp {
             Some(StartView::Setup) => "setup",
             Some(StartView::Tuning) => "tuning",
             Some(StartView::Structure) => "structure",
+            Some(StartView::Averages) => "averages",
         };
         let mut run = RunView::new(&start.setup);
         if start.restored {
@@ -87,6 +89,7 @@ impl NoblescopeApp {
             tuning_open: opts.view == Some(StartView::Tuning),
             structure_open: opts.view == Some(StartView::Structure),
             analyses_watched: false,
+            averages_open: opts.view == Some(StartView::Averages),
             tune_at_start: opts.view == Some(StartView::Tuning),
             help_open: false,
             sweep: opts.sweep.as_deref().and_then(|d| SweepView::load(d).ok()),
@@ -129,6 +132,22 @@ impl NoblescopeApp {
     /// The "Structure and motion" panel's state.
     pub fn structure(&self) -> &super::structure_panel::StructurePanel {
         &self.run.structure
+    }
+
+    /// Opens or closes the averages panel.
+    pub fn set_averages_open(&mut self, open: bool) {
+        self.averages_open = open;
+    }
+
+    /// The averages: the newest evidence and the start being set.
+    pub fn averages(&self) -> &super::averages::Averages {
+        &self.run.averages
+    }
+
+    /// Where the time plots drew the start line in the last frame: each plot's frame and the
+    /// line's screen x.
+    pub fn start_line_drawn(&self) -> &[(egui::Rect, f32)] {
+        self.run.plots.start_line_drawn()
     }
 
     /// Opens or closes the tuning panel.

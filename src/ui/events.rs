@@ -2,12 +2,15 @@
 //! what each event does can be tested without a window. It is the one place that matches on
 //! [`Event`].
 
+use super::averages::Averages;
+use super::averages::{reduced_unit, setup_unit};
 use super::plots::Plots;
 use super::setup_form::SetupForm;
 use super::status::StatusLine;
 use super::structure_panel::StructurePanel;
 use super::tuning_panel::TuningPanel;
 use super::unit_field::format_number;
+use crate::analysis::TargetProgress;
 use crate::engine::{CommandKind, TuningReport};
 use crate::engine::{Event, FlightRecord, SnapshotMark};
 use crate::io::setup::{Ensemble, Setup};
@@ -36,6 +39,8 @@ pub struct RunView {
     /// The snapshots the engine holds (the rewind timeline) and their memory.
     pub snapshots: Vec<SnapshotMark>,
     pub snapshot_bytes: usize,
+    /// The run's averages, verdicts and the start they are taken from.
+    pub averages: Averages,
 }
 
 /// What an event means for the rest of the window beyond the state it changed.
@@ -69,6 +74,27 @@ fn tuned_message(report: &TuningReport) -> String {
     }
 }
 
+/// The status line's sentence when every precision target is met.
+fn precision_message(met: &[TargetProgress], units: UnitSystem) -> String {
+    let targets: Vec<String> = met
+        .iter()
+        .map(|p| {
+            let q = p.target.quantity;
+            let (f, u) = setup_unit(q, units).unwrap_or((1.0, reduced_unit(q)));
+            format!(
+                "{} {} ≤ {} {u}",
+                q.label().to_lowercase(),
+                format_number(p.stderr * f),
+                format_number(p.target.stderr * f)
+            )
+        })
+        .collect();
+    format!(
+        "Precision reached and paused: standard error of {}. Press Run to go on; it will not stop for them again.",
+        targets.join(", ")
+    )
+}
+
 impl RunView {
     /// The view before the engine has said anything: `setup` is taken as running.
     pub fn new(setup: &Setup) -> Self {
@@ -84,6 +110,7 @@ impl RunView {
             scrub: 0,
             snapshots: Vec::new(),
             snapshot_bytes: 0,
+            averages: Averages::default(),
         }
     }
 
@@ -120,6 +147,7 @@ pub fn reduce(view: &mut RunView, event: Event) -> Echo {
             view.atoms = atoms;
             view.plots.restart(setup.units(), thermostat_target(&setup));
             view.structure.clear();
+            view.averages.restart();
             view.status.alarm = None;
             view.recording = None;
         }
@@ -178,6 +206,11 @@ pub fn reduce(view: &mut RunView, event: Event) -> Echo {
             view.status.info(format!(
                 "Reached the setup's {steps} steps and paused. Press Run to go on past them; the run is then longer than its setup says."
             ));
+        }
+        Event::Evidence(report) => view.averages.received(report),
+        Event::PrecisionReached(met) => {
+            view.status.status.running = false;
+            view.status.info(precision_message(&met, view.running.units()));
         }
         Event::Saved(p) => view.status.info(format!("Checkpoint saved to {}", p.display())),
         Event::Analyses(r) => view.structure.report = Some(r),
@@ -340,6 +373,56 @@ mod tests {
         assert_eq!(
             view.status.message.as_ref().unwrap().text,
             "Checkpoint saved to /tmp/run.ckpt"
+        );
+    }
+
+    #[test]
+    fn evidence_reaches_the_averages_and_met_targets_pause_with_a_message() {
+        use crate::analysis::{PrecisionTarget, Quantity, SampleStore, StartChoice, TargetProgress, analyse};
+        let s = argon();
+        let mut view = RunView::new(&s);
+        started(&mut view, &s, 500);
+        let mut store = SampleStore::new(64);
+        store.push(&Observables::default());
+        let report = crate::engine::EvidenceReport {
+            evidence: analyse(&store, StartChoice::FromTime(0.0), true),
+            precision: Vec::new(),
+            eos: None,
+            units: s.units(),
+            sample_every: 10,
+            step: 0,
+            analysis_seconds: 0.0,
+        };
+        reduce(&mut view, Event::Evidence(Box::new(report)));
+        let shown = view.averages.report().expect("the evidence is kept");
+        assert_eq!((shown.evidence.entries, shown.sample_every), (1, 10));
+        assert!(view.averages.is_manual());
+        view.status.status.running = true;
+        let bar = s.units().pressure_bar();
+        reduce(
+            &mut view,
+            Event::PrecisionReached(vec![TargetProgress {
+                target: PrecisionTarget {
+                    quantity: Quantity::Pressure,
+                    stderr: 2.0 / bar,
+                },
+                stderr: 1.5 / bar,
+                met: true,
+                samples_needed: Some(0),
+            }]),
+        );
+        assert!(!view.status.status.running, "the run shows as paused");
+        let m = view.status.message.as_ref().unwrap();
+        assert!(
+            m.text
+                .starts_with("Precision reached and paused: standard error of pressure 1.5 ≤ 2 bar"),
+            "{}",
+            m.text
+        );
+        started(&mut view, &s, 500);
+        assert!(
+            view.averages.report().is_none(),
+            "a new run forgets the old evidence"
         );
     }
 

@@ -54,6 +54,8 @@ impl NoblescopeApp {
                 .on_hover_text(
                     "g(r), mean squared displacement, velocity autocorrelation, speeds and D, live",
                 );
+            ui.toggle_value(&mut self.averages_open, "Averages")
+                .on_hover_text("means with their errors, and whether the run has equilibrated");
             if ui
                 .button("Help")
                 .on_hover_text(hint_of(&ctx, Action::ToggleHelp))

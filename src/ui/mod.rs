@@ -12,7 +12,9 @@
 //! - [`menu_bar`], [`panels`]: the top bar, and the panels and overlays around the view;
 //! - [`setup_form`], [`unit_field`]: editing and validating a setup;
 //! - [`particle_view`], [`slab_view`], [`gl_spheres`], [`cull`]: the atoms in 3D or as a flat slab;
-//! - [`plots`], [`series`]: live plots on bounded, envelope-keeping series;
+//! - [`plots`], [`series`]: live plots on bounded, envelope-keeping series; [`plot_marks`] and
+//!   [`start_line`]: the equilibration start (draggable) and the equation-of-state references on them;
+//! - [`averages`], [`averages_panel`]: the run's averages with their errors and verdicts;
 //! - [`tuning_panel`]: timestep and cutoff scans before a long run;
 //! - [`structure_panel`]: the "Structure and motion" panel (g(r), MSD, VACF, speeds, D);
 //! - [`status`], [`help`], [`palette`]: status line and messages, the help overlay and colours;
@@ -22,6 +24,8 @@
 
 pub mod alarm_view;
 pub mod app;
+pub mod averages;
+pub mod averages_panel;
 pub mod cull;
 pub mod events;
 pub mod file_actions;
@@ -35,6 +39,7 @@ pub mod panels;
 pub mod particle_view;
 pub mod pending;
 pub mod persist;
+pub mod plot_marks;
 pub mod plots;
 pub mod scripted;
 pub mod series;
@@ -42,6 +47,7 @@ pub mod setup_form;
 pub mod shortcuts;
 pub mod slab_view;
 pub mod start;
+pub mod start_line;
 pub mod status;
 pub mod structure_panel;
 pub mod sweep_view;

@@ -105,6 +105,17 @@ pub const ERROR_TEXT: Color32 = Color32::from_rgb(0xF2, 0x8B, 0x7A);
 /// Caution text (model limits, quantum notes).
 pub const CAUTION_TEXT: Color32 = Color32::from_rgb(0xF0, 0xC8, 0x5A);
 
+/// The equilibration start line in the time plots, and its handle.
+pub const START_LINE: Color32 = Color32::from_rgb(0x7F, 0xD1, 0xD8);
+/// Dimming laid over the part of a time plot before the equilibration start.
+pub const BEFORE_START: Color32 = Color32::from_rgba_premultiplied(0x0B, 0x0D, 0x11, 0x9C);
+/// The equation of state's reference line.
+pub const EOS_LINE: Color32 = Color32::from_rgb(0xE8, 0xE8, 0xE8);
+/// The run's full-potential mean and its ±2 standard error band.
+pub const RUN_BAND: Color32 = Color32::from_rgb(0xE0, 0x9F, 0x3E);
+/// Verdict text: equilibrated (the words always say it too).
+pub const VERDICT_GOOD: Color32 = Color32::from_rgb(0x8F, 0xD0, 0x8F);
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -7,7 +7,9 @@ use super::app::NoblescopeApp;
 use super::help;
 use super::palette;
 use super::pending::Ask;
+use super::plot_marks::PlotMarks;
 use super::setup_form::{FormAction, SetupForm};
+use super::start_line::StartDrag;
 use super::structure_panel::StructureAction;
 use super::timeline;
 use super::tuning_panel::TuningAction;
@@ -20,6 +22,8 @@ const MIN_CENTRE_WIDTH: f32 = 520.0;
 const FORM_MIN_WIDTH: f32 = 300.0;
 /// Narrowest tuning panel, points.
 const TUNING_MIN_WIDTH: f32 = 380.0;
+/// Narrowest averages panel, points.
+const AVERAGES_MIN_WIDTH: f32 = 360.0;
 
 impl NoblescopeApp {
     /// Draws every panel and overlay into `ui`.
@@ -49,8 +53,13 @@ impl NoblescopeApp {
         // leaves the centre MIN_CENTRE_WIDTH (and the other panel its minimum).
         let total = ui.available_width();
         let mut form_width = 0.0;
+        let averages_min = if self.averages_open {
+            AVERAGES_MIN_WIDTH
+        } else {
+            0.0
+        };
         if self.form_open {
-            let others = if self.tuning_open { TUNING_MIN_WIDTH } else { 0.0 };
+            let others = if self.tuning_open { TUNING_MIN_WIDTH } else { 0.0 } + averages_min;
             form_width = egui::Panel::left("setup-form")
                 .frame(bare(egui::Frame::side_top_panel(&style)))
                 .resizable(true)
@@ -70,14 +79,15 @@ impl NoblescopeApp {
                 .rect
                 .width();
         }
+        let mut tuning_width = 0.0;
         if self.tuning_open {
             self.start_scan_if_asked();
-            egui::Panel::right("tuning-panel")
+            tuning_width = egui::Panel::right("tuning-panel")
                 .frame(bare(egui::Frame::side_top_panel(&style)))
                 .resizable(true)
                 .default_size(580.0)
                 .min_size(TUNING_MIN_WIDTH)
-                .max_size((total - form_width - MIN_CENTRE_WIDTH).max(TUNING_MIN_WIDTH))
+                .max_size((total - form_width - averages_min - MIN_CENTRE_WIDTH).max(TUNING_MIN_WIDTH))
                 .show(ui, |ui| {
                     ui.heading("Timestep and cutoff tuning");
                     // Both ways: at the panel's narrowest its tables scroll instead of spilling
@@ -86,6 +96,26 @@ impl NoblescopeApp {
                         let running = self.run.running.clone();
                         if let Some(a) = self.run.tuning.show(ui, &running) {
                             self.tuning_action(a);
+                        }
+                    });
+                })
+                .response
+                .rect
+                .width();
+        }
+        if self.averages_open {
+            egui::Panel::right("averages-panel")
+                .frame(bare(egui::Frame::side_top_panel(&style)))
+                .resizable(true)
+                .default_size(600.0)
+                .min_size(AVERAGES_MIN_WIDTH)
+                .max_size((total - form_width - tuning_width - MIN_CENTRE_WIDTH).max(AVERAGES_MIN_WIDTH))
+                .show(ui, |ui| {
+                    ui.heading("Averages");
+                    // Vertical only: the texts wrap to the panel, the table fits its narrowest.
+                    egui::ScrollArea::vertical().show(ui, |ui| {
+                        if let Some(c) = self.run.averages.show(ui) {
+                            self.send(c);
                         }
                     });
                 });
@@ -140,7 +170,20 @@ impl NoblescopeApp {
                     ));
                     self.send(Command::RewindTo(step));
                 }
-                self.run.plots.show(ui, w, cursor);
+                let marks = PlotMarks::of(&self.run.averages);
+                match self.run.plots.show(ui, w, cursor, &marks) {
+                    Some(StartDrag::Moved(t)) if self.run.averages.dragged != Some(t) => {
+                        self.run.averages.dragged = Some(t);
+                        let c = self.run.averages.ask_dragged(t);
+                        self.send(c);
+                    }
+                    Some(StartDrag::Released(t)) => {
+                        self.run.averages.dragged = None;
+                        let c = self.run.averages.ask_dragged(t);
+                        self.send(c);
+                    }
+                    Some(StartDrag::Moved(_)) | None => {}
+                }
             });
         if self.structure_open {
             let mut open = true;

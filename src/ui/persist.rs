@@ -68,7 +68,7 @@ pub fn start_state(storage: Option<&dyn eframe::Storage>, opts: &StartOptions) -
             form_open = false;
         }
         Some(StartView::Setup) => form_open = true,
-        Some(StartView::Tuning) | Some(StartView::Structure) => form_open = false,
+        Some(StartView::Tuning) | Some(StartView::Structure) | Some(StartView::Averages) => form_open = false,
         None => {}
     }
     let saved = if restored {

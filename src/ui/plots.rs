@@ -4,9 +4,11 @@
 //! the reduced fluid), and kept in bounded [`EnvelopeSeries`].
 
 use super::palette;
+use super::plot_marks::{PlotMarks, add_reference, label_reference};
 use super::series::{EnvelopeSeries, ThinnedLog};
+use super::start_line::{StartDrag, StartLine};
 use crate::physics::{Observables, UnitSystem};
-use egui_plot::{GridInput, GridMark, HLine, Legend, Line, Plot, PlotPoints, VLine};
+use egui_plot::{AxisHints, GridInput, GridMark, HLine, Legend, Line, Plot, PlotPoints, VLine};
 
 /// Grid marks at 1, 2 or 5 × 10ⁿ, about five labelled lines across the range, and no finer
 /// lines: the default powers-of-ten spacing leaves short plots with a single label, and every
@@ -95,6 +97,9 @@ pub struct Plots {
     target: Option<f64>,
     log: ThinnedLog<Observables>,
     last: Option<Observables>,
+    /// The draggable equilibration start, and where it was drawn in the last frame.
+    start_line: StartLine,
+    start_drawn: Vec<(egui::Rect, f32)>,
 }
 
 impl Plots {
@@ -112,6 +117,8 @@ impl Plots {
             target: None,
             log: ThinnedLog::new(EXPORT_CAPACITY),
             last: None,
+            start_line: StartLine::default(),
+            start_drawn: Vec::new(),
         }
     }
 
@@ -206,9 +213,22 @@ impl Plots {
         self.units
     }
 
-    /// Draws the four plots in a 2×2 grid filling the available space; `cursor` (τ) marks the
-    /// time of the frame shown while the flight recorder is scrubbed.
-    pub fn show(&mut self, ui: &mut egui::Ui, width: f32, cursor: Option<f64>) {
+    /// Where the start line was drawn in the last frame: each time plot's frame and the line's
+    /// screen x (tests drag it from there).
+    pub fn start_line_drawn(&self) -> &[(egui::Rect, f32)] {
+        &self.start_drawn
+    }
+
+    /// Draws the four plots in a 2×2 grid filling the available space, with `marks`; `cursor`
+    /// (τ) marks the time of the frame shown while the flight recorder is scrubbed. Returns
+    /// what the user did with the start line.
+    pub fn show(
+        &mut self,
+        ui: &mut egui::Ui,
+        width: f32,
+        cursor: Option<f64>,
+        marks: &PlotMarks,
+    ) -> Option<StartDrag> {
         let cursor = cursor.map(|t| t * self.time_factor());
         let mark = |p: &mut egui_plot::PlotUi| {
             if let Some(t) = cursor {
@@ -222,30 +242,47 @@ impl Plots {
             ("kT/ε", "ε/σ³")
         };
         // The width the caller measured before anything above could widen the ui.
-        let avail = egui::vec2(width.min(ui.available_width()), ui.available_height());
+        // Room for the caption under the plots (two small lines).
+        let caption = if marks.start.is_some() || marks.note.is_some() {
+            30.0
+        } else {
+            0.0
+        };
+        let avail = egui::vec2(width.min(ui.available_width()), ui.available_height() - caption);
         let w = (avail.x - 8.0) / 2.0;
         let h = ((avail.y - 8.0) / 2.0).max(90.0);
         let target = self.target;
         let latest = self.last.map_or(0.0, |o| o.time * self.time_factor());
         let link = ui.scope_id().with("time-axis");
+        let pan = !self.start_line.begin_frame(ui, &self.start_drawn);
         let plot = |name: &str, ylabel: String, range: Option<(f64, f64)>| {
             let mut plot = Plot::new(name.to_string())
                 .width(w)
                 .height(h)
-                .x_axis_label(format!("time [{tu}]"))
+                // Time ticks are short ("10", "0.05"): labelled down to 32 points apart, where the
+                // default wants 60 and leaves narrow plots (a side panel open) without any.
+                .custom_x_axes(vec![
+                    AxisHints::new_x()
+                        .label(format!("time [{tu}]"))
+                        .formatter(|m, _| tick_label(m))
+                        .label_spacing(32.0..=44.0),
+                ])
                 .y_axis_label(ylabel)
                 .legend(Legend::default())
                 .link_axis(link, [true, false])
                 .link_cursor(link, [true, false])
                 .allow_scroll(false)
+                .allow_drag(pan)
                 .y_axis_min_width(64.0)
                 .show_background(false)
                 .y_grid_spacer(nice_grid)
                 .x_grid_spacer(nice_grid)
-                .x_axis_formatter(|m, _| tick_label(m))
                 .y_axis_formatter(|m, _| tick_label(m));
             if let Some((lo, hi)) = range {
                 plot = plot.include_y(lo).include_y(hi);
+            }
+            if let Some(s) = marks.start {
+                plot = plot.include_x(s);
             }
             // Time runs from 0; at step 0 one time unit is shown instead of a zoom into nothing.
             plot.include_x(0.0)
@@ -265,6 +302,25 @@ impl Plots {
         );
         let temperature_range = shown_y_range(self.temperature.y_range(), VALUE_MIN_SPAN);
         let pressure_range = shown_y_range(self.pressure.y_range(), VALUE_MIN_SPAN);
+        let with_reference = |range: Option<(f64, f64)>, r: &Option<super::plot_marks::Reference>| match r {
+            Some(r) => joint(
+                range,
+                [
+                    r.equation,
+                    Some(r.run_mean - 2.0 * r.run_stderr),
+                    Some(r.run_mean + 2.0 * r.run_stderr),
+                ]
+                .into_iter()
+                .flatten()
+                .filter(|v| v.is_finite())
+                .fold(None, |acc: Option<(f64, f64)>, v| {
+                    Some(acc.map_or((v, v), |(a, b)| (a.min(v), b.max(v))))
+                }),
+            ),
+            None => range,
+        };
+        let energy_range = with_reference(energy_range, &marks.energy);
+        let pressure_range = with_reference(pressure_range, &marks.pressure);
         let Plots {
             drift,
             kinetic,
@@ -272,17 +328,30 @@ impl Plots {
             total,
             temperature,
             pressure,
+            start_line,
             ..
         } = self;
+        let start = marks.start;
+        let manual = marks.manual;
+        let mut drag = None;
+        let mut follow = |ui: &egui::Ui, r: &egui_plot::PlotResponse<()>, line: &mut StartLine| {
+            if let Some(d) = line.after_plot(ui, r, start, manual) {
+                drag = Some(d);
+            }
+        };
         ui.horizontal(|ui| {
-            plot("drift-plot", "relative drift [1]".into(), drift_range).show(ui, |p| {
+            let r = plot("drift-plot", "relative drift [1]".into(), drift_range).show(ui, |p| {
                 p.line(
                     Line::new("conserved energy drift", PlotPoints::Borrowed(drift.points()))
                         .color(palette::SERIES[0]),
                 );
                 mark(p);
+                if let Some(s) = start {
+                    StartLine::add_to(p, s);
+                }
             });
-            plot("energy-plot", "energy per atom [ε]".into(), energy_range).show(ui, |p| {
+            follow(ui, &r, start_line);
+            let r = plot("energy-plot", "energy per atom [ε]".into(), energy_range).show(ui, |p| {
                 p.line(
                     Line::new("kinetic", PlotPoints::Borrowed(kinetic.points())).color(palette::SERIES[1]),
                 );
@@ -292,10 +361,20 @@ impl Plots {
                 );
                 p.line(Line::new("total", PlotPoints::Borrowed(total.points())).color(palette::SERIES[3]));
                 mark(p);
+                if let Some(r) = &marks.energy {
+                    add_reference(p, r);
+                }
+                if let Some(s) = start {
+                    StartLine::add_to(p, s);
+                }
             });
+            follow(ui, &r, start_line);
+            if let Some(m) = &marks.energy {
+                label_reference(ui, &r, m, start_line.label_rect());
+            }
         });
         ui.horizontal(|ui| {
-            plot(
+            let r = plot(
                 "temperature-plot",
                 format!("temperature [{tunit}]"),
                 temperature_range,
@@ -313,14 +392,38 @@ impl Plots {
                             .style(egui_plot::LineStyle::dashed_dense()),
                     );
                 }
+                if let Some(s) = start {
+                    StartLine::add_to(p, s);
+                }
             });
-            plot("pressure-plot", format!("pressure [{punit}]"), pressure_range).show(ui, |p| {
+            follow(ui, &r, start_line);
+            let r = plot("pressure-plot", format!("pressure [{punit}]"), pressure_range).show(ui, |p| {
                 p.line(
                     Line::new("pressure", PlotPoints::Borrowed(pressure.points())).color(palette::SERIES[5]),
                 );
                 mark(p);
+                if let Some(r) = &marks.pressure {
+                    add_reference(p, r);
+                }
+                if let Some(s) = start {
+                    StartLine::add_to(p, s);
+                }
             });
+            follow(ui, &r, start_line);
+            if let Some(m) = &marks.pressure {
+                label_reference(ui, &r, m, start_line.label_rect());
+            }
         });
+        if caption > 0.0 {
+            // Wrapped to the measured width: the ui itself may reach under a side panel.
+            ui.scope(|ui| {
+                ui.set_max_width(avail.x);
+                marks.caption(ui);
+            });
+        }
+        self.start_line.end_frame(ui);
+        self.start_drawn = self.start_line.drawn();
+        drag
     }
 }
 

@@ -19,6 +19,8 @@ pub enum StartView {
     Tuning,
     /// The "Structure and motion" panel over the view, its analyses running.
     Structure,
+    /// The averages panel beside the view.
+    Averages,
 }
 
 /// What a scripted watch does.
