@@ -147,24 +147,22 @@ fn a_series_that_never_equilibrates_is_not_called_equilibrated() {
 }
 
 #[test]
-fn a_late_jump_gives_a_late_start_and_no_verdict_of_equilibrium() {
+fn a_late_jump_is_never_called_equilibrated() {
+    // pymbar puts the start at the jump (80 % of the run). The program looks for a start in the
+    // first half only (a later one leaves too few samples to decide); the jump inside the
+    // averaged part then makes g so large that too few independent samples remain, or shows in
+    // the thirds check. A start set by hand after the jump is taken as given.
     let (x, e) = entry("late_jump");
+    assert_eq!(e["start"].as_u64().unwrap(), 3200);
     let ev = analyse(&store_of(&x), StartChoice::Automatic, true);
-    let pymbar_start = e["start"].as_u64().unwrap() as usize;
-    assert!(
-        ev.start_index >= pymbar_start - 40,
-        "start {} (pymbar {pymbar_start})",
-        ev.start_index
-    );
-    match ev.overall {
-        Verdict::NotYet(NotYetReason::LateStart { fraction }) => assert!(fraction > 0.5),
-        other => panic!("{other:?}"),
-    }
-    assert!(
-        ev.overall
-            .words(|t| format!("{t} τ"))
-            .starts_with("not yet equilibrated")
-    );
+    assert!(ev.start_index <= x.len() / 2, "start {}", ev.start_index);
+    assert!(!ev.overall.is_equilibrated(), "{:?}", ev.overall);
+    let words = ev.overall.words(|t| format!("{t} τ"));
+    assert!(words.starts_with("still drifting") || words.starts_with("not yet"), "{words}");
+    // Set by hand after the jump (sample 3300 of 4000, t = 165 τ): 700 samples of settled noise.
+    let after = analyse(&store_of(&x), StartChoice::FromTime(165.0), true);
+    assert_eq!(after.start_index, 3300);
+    assert!(after.overall.is_equilibrated(), "{:?}", after.overall);
 }
 
 #[test]
