@@ -8,7 +8,7 @@
 //! and stored in `tests/data/pymbar_evidence.json`. Methods: Chodera, J. Chem. Theory Comput.
 //! 12, 1799 (2016); Chodera, Swope, Pitera, Seok & Dill, J. Chem. Theory Comput. 3, 26 (2007).
 
-use noblescope::analysis::evidence::{NotYetReason, StartChoice, Verdict, analyse};
+use noblescope::analysis::evidence::{StartChoice, Verdict, analyse};
 use noblescope::analysis::series_statistics::{
     DRIFT_SIGMAS, SCAN_BLOCKS, detect_start, detect_start_bounded, statistics_from,
 };
@@ -158,7 +158,10 @@ fn a_late_jump_is_never_called_equilibrated() {
     assert!(ev.start_index <= x.len() / 2, "start {}", ev.start_index);
     assert!(!ev.overall.is_equilibrated(), "{:?}", ev.overall);
     let words = ev.overall.words(|t| format!("{t} τ"));
-    assert!(words.starts_with("still drifting") || words.starts_with("not yet"), "{words}");
+    assert!(
+        words.starts_with("still drifting") || words.starts_with("not yet"),
+        "{words}"
+    );
     // Set by hand after the jump (sample 3300 of 4000, t = 165 τ): 700 samples of settled noise.
     let after = analyse(&store_of(&x), StartChoice::FromTime(165.0), true);
     assert_eq!(after.start_index, 3300);
