@@ -10,6 +10,7 @@ pub mod motion_csv;
 pub mod numbers;
 pub mod precision_setting;
 pub mod rdf_csv;
+pub mod ron_text;
 pub mod run_folder;
 pub mod setup;
 pub mod slurm_script;

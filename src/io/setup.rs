@@ -329,34 +329,16 @@ impl From<crate::physics::SpecError> for SetupError {
 impl Setup {
     /// Parses setup text; `file` names it in error messages.
     pub fn parse(text: &str, file: &str) -> Result<Setup, SetupError> {
-        ron::Options::default()
-            .from_str(text)
-            .map_err(|e: ron::error::SpannedError| SetupError::Parse {
-                file: file.into(),
-                line: e.span.start.line,
-                column: e.span.start.col,
-                message: e.code.to_string(),
-            })
+        super::ron_text::parse(text, file, ron::Options::default())
     }
 
     /// Reads and parses a setup file (not yet validated; see [`Setup::resolve`]).
     ///
-    /// At most [`MAX_SETUP_BYTES`] are read (through `take`, so a pipe or a device such as
-    /// `/dev/zero` is never read past the cap); a longer file is an error naming its size.
+    /// At most [`MAX_SETUP_BYTES`] are read (see [`super::ron_text::read_text`]); a longer file
+    /// is an error naming its size.
     pub fn load(path: &Path) -> Result<Setup, SetupError> {
         let file = path.display().to_string();
-        let read = |message: String| SetupError::Read {
-            file: file.clone(),
-            message,
-        };
-        let bytes = super::capped_read::read_capped(path, MAX_SETUP_BYTES)
-            .map_err(|e| read(e.to_string()))?
-            .map_err(|size| {
-                read(format!(
-                    "size {size} is out of range; allowed: at most {MAX_SETUP_BYTES} bytes (a setup is a few hundred)"
-                ))
-            })?;
-        let text = String::from_utf8(bytes).map_err(|_| read("stream did not contain valid UTF-8".into()))?;
+        let text = super::ron_text::read_text(path, "a setup is a few hundred")?;
         let mut setup = Setup::parse(&text, &file)?;
         if let (Start::File { path: start }, Some(dir)) = (&mut setup.start, path.parent())
             && Path::new(start.as_str()).is_relative()

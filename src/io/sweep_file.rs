@@ -14,7 +14,7 @@
 //! density, timestep, cutoff, atoms, replica fastest). Point i runs with seed `base.seed + i`
 //! (wrapping), so any point can be rerun alone from its own setup file with the same result.
 
-use super::setup::{Density, Duration, Length, MAX_SETUP_BYTES, Setup, SetupError, Temperature};
+use super::setup::{Density, Duration, Length, Setup, SetupError, Start, Temperature};
 use serde::{Deserialize, Serialize};
 use std::path::{Path, PathBuf};
 
@@ -125,48 +125,43 @@ impl Sweep {
     /// Parses sweep text; `file` names it in errors. Values of `exclude` are written plainly
     /// (`(temperature: Kelvin(90.0))`, no `Some(…)`).
     pub fn parse(text: &str, file: &str) -> Result<Sweep, SetupError> {
-        ron::Options::default()
-            .with_default_extension(ron::extensions::Extensions::IMPLICIT_SOME)
-            .from_str(text)
-            .map_err(|e: ron::error::SpannedError| SetupError::Parse {
-                file: file.into(),
-                line: e.span.start.line,
-                column: e.span.start.col,
-                message: e.code.to_string(),
-            })
+        let options =
+            ron::Options::default().with_default_extension(ron::extensions::Extensions::IMPLICIT_SOME);
+        super::ron_text::parse(text, file, options)
     }
 
-    /// Reads a sweep file (at most [`MAX_SETUP_BYTES`]).
+    /// Reads a sweep file (at most [`super::setup::MAX_SETUP_BYTES`]).
     pub fn load(path: &Path) -> Result<Sweep, SetupError> {
-        let file = path.display().to_string();
-        let read = |message: String| SetupError::Read {
-            file: file.clone(),
-            message,
-        };
-        let bytes = super::capped_read::read_capped(path, MAX_SETUP_BYTES)
-            .map_err(|e| read(e.to_string()))?
-            .map_err(|size| {
-                read(format!(
-                    "size {size} is out of range; allowed: at most {MAX_SETUP_BYTES} bytes"
-                ))
-            })?;
-        let text = String::from_utf8(bytes).map_err(|_| read("stream did not contain valid UTF-8".into()))?;
-        Sweep::parse(&text, &file)
+        let text = super::ron_text::read_text(path, "a sweep is a few hundred")?;
+        Sweep::parse(&text, &path.display().to_string())
     }
 
-    /// The base setup: read from its file (relative to `sweep_dir`) or the inline one.
+    /// The base setup: read from its file (relative to `sweep_dir`) or the inline one. A start
+    /// file's path is made absolute (an inline setup's is relative to the sweep file), so each
+    /// point's own setup file finds it from the point's folder.
     pub fn base_setup(&self, sweep_dir: &Path) -> Result<(Setup, Option<PathBuf>), SetupError> {
-        match &self.base {
-            Base::Inline(s) => Ok(((**s).clone(), None)),
+        let (mut setup, from) = match &self.base {
+            Base::Inline(s) => ((**s).clone(), None),
             Base::Path(p) => {
                 let path = sweep_dir.join(p);
-                Ok((Setup::load(&path)?, Some(path)))
+                (Setup::load(&path)?, Some(path))
+            }
+        };
+        if let Start::File { path } = &mut setup.start {
+            let joined = if Path::new(path.as_str()).is_relative() && from.is_none() {
+                sweep_dir.join(path.as_str())
+            } else {
+                PathBuf::from(path.as_str())
+            };
+            if let Ok(abs) = std::path::absolute(&joined) {
+                *path = abs.display().to_string();
             }
         }
+        Ok((setup, from))
     }
 
-    /// Number of points: the product of the non-empty axes, times the replicas, less excluded
-    /// combinations (counted before exclusion when `before_exclusion`).
+    /// Number of points before exclusions: the product of the non-empty axes, times the
+    /// replicas.
     pub fn count(&self) -> u64 {
         let axes = [
             self.temperature.len(),
