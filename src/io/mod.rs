@@ -13,6 +13,7 @@ pub mod rdf_csv;
 pub mod ron_text;
 pub mod run_folder;
 pub mod setup;
+pub mod setup_error;
 pub mod slurm_script;
 pub mod speeds_csv;
 pub mod start_file;

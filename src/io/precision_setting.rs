@@ -7,9 +7,10 @@
 //! ]
 //! ```
 
-use super::setup::{Setup, SetupError};
+use super::setup_error::SetupError;
 use crate::analysis::{PrecisionTarget, Quantity};
 use crate::io::numbers::format_number;
+use crate::physics::UnitSystem;
 use serde::{Deserialize, Serialize};
 
 /// A standard error, in reduced units or a unit that fits its quantity.
@@ -54,30 +55,26 @@ pub const MAX_PRECISION_TARGETS: usize = 5;
 /// mean over ~10⁸ samples are noise (common practice).
 pub const SMALLEST_TARGET_REDUCED: f64 = 1e-9;
 
-impl Setup {
-    /// The precision targets in reduced units, validated: each quantity at most once, a
-    /// positive finite value, a unit that fits the quantity, real units only for real species.
-    pub fn precision_targets_reduced(&self) -> Result<Vec<PrecisionTarget>, SetupError> {
-        let u = self.units();
-        if self.precision_targets.len() > MAX_PRECISION_TARGETS {
+/// The targets in reduced units of `u`, validated: each quantity at most once, a positive
+/// finite value, a unit that fits the quantity, real units only for real species.
+pub fn reduce(targets: &[PrecisionSetting], u: UnitSystem) -> Result<Vec<PrecisionTarget>, SetupError> {
+    {
+        if targets.len() > MAX_PRECISION_TARGETS {
             return Err(SetupError::Field {
                 field: "precision_targets".into(),
-                value: format!("{} entries", self.precision_targets.len()),
+                value: format!("{} entries", targets.len()),
                 allowed: format!("at most {MAX_PRECISION_TARGETS}, one per quantity"),
             });
         }
         let mut out = Vec::new();
-        for (i, t) in self.precision_targets.iter().enumerate() {
+        for (i, t) in targets.iter().enumerate() {
             let field = format!("precision_targets[{i}].stderr");
             let bad = |allowed: String| SetupError::Field {
                 field: field.clone(),
                 value: format!("{:?}", t.stderr),
                 allowed,
             };
-            if self.precision_targets[..i]
-                .iter()
-                .any(|o| o.quantity == t.quantity)
-            {
+            if targets[..i].iter().any(|o| o.quantity == t.quantity) {
                 return Err(SetupError::Field {
                     field: format!("precision_targets[{i}].quantity"),
                     value: format!("{:?} (listed twice)", t.quantity),

@@ -231,10 +231,7 @@ fn default_sample_every() -> u64 {
     10
 }
 
-/// Largest setup file read, 1 MiB. A real setup is a few hundred bytes (the bundled ones are
-/// under 1 KiB), so this is far above any of them, and it keeps `noblescope run /dev/zero` from
-/// reading until memory runs out.
-pub const MAX_SETUP_BYTES: u64 = 1 << 20;
+pub use super::ron_text::MAX_SETUP_BYTES;
 /// Largest atom count a setup may ask for.
 pub const MAX_ATOMS: u64 = 1_000_000;
 /// Reduced density ρσ³ a setup may ask for: (smallest, largest).
@@ -275,58 +272,15 @@ pub fn bytes_per_atom_estimate(density: f64, reach: f64) -> u64 {
     BYTES_PER_ATOM_ESTIMATE + (1.1 * pairs * 4.0 * 13.0 / 12.0).ceil() as u64
 }
 
-/// Why a setup cannot be run.
-#[derive(Clone, Debug, PartialEq, thiserror::Error)]
-pub enum SetupError {
-    /// The text is not a valid setup.
-    #[error("{file}:{line}:{column}: {message}")]
-    Parse {
-        file: String,
-        line: usize,
-        column: usize,
-        message: String,
-    },
-    /// A field has a value outside its allowed range.
-    #[error("{field}: {value} is out of range; allowed: {allowed}")]
-    Field {
-        field: String,
-        value: String,
-        allowed: String,
-    },
-    /// The file could not be read.
-    #[error("{file}: {message}")]
-    Read { file: String, message: String },
-}
-
-impl SetupError {
-    fn field(field: &str, value: impl std::fmt::Display, allowed: impl Into<String>) -> Self {
-        SetupError::Field {
-            field: field.into(),
-            value: value.to_string(),
-            allowed: allowed.into(),
-        }
-    }
-
-    /// The field the error is about, if it is about one.
-    pub fn field_name(&self) -> Option<&str> {
-        match self {
-            SetupError::Field { field, .. } => Some(field),
-            _ => None,
-        }
-    }
-}
-
-impl From<crate::physics::SpecError> for SetupError {
-    fn from(e: crate::physics::SpecError) -> Self {
-        SetupError::Field {
-            field: e.field.into(),
-            value: e.value,
-            allowed: e.allowed,
-        }
-    }
-}
+pub use super::setup_error::SetupError;
 
 impl Setup {
+    /// The precision targets in reduced units, validated (see
+    /// [`super::precision_setting::reduce`]).
+    pub fn precision_targets_reduced(&self) -> Result<Vec<crate::analysis::PrecisionTarget>, SetupError> {
+        super::precision_setting::reduce(&self.precision_targets, self.units())
+    }
+
     /// Parses setup text; `file` names it in error messages.
     pub fn parse(text: &str, file: &str) -> Result<Setup, SetupError> {
         super::ron_text::parse(text, file, ron::Options::default())

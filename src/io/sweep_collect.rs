@@ -2,7 +2,7 @@
 //! point folders (on any machine that sees the folder).
 
 use super::sweep_folder::{PointRecord, PointState, SweepFolderError, point_dir, point_indices, point_state};
-use super::sweep_plot::{SweepPoint, Varying};
+use super::sweep_plot::{PlotData, SweepPoint, Varying};
 use serde_json::{Value, json};
 use std::path::Path;
 
@@ -114,17 +114,6 @@ pub struct Collected {
     pub pending: usize,
     /// `sweep.svg` was written (a sweep that varies density or temperature alone).
     pub plot: bool,
-}
-
-/// What a sweep's plot shows: pressure against the one axis that varies.
-#[derive(Clone, Debug, PartialEq)]
-pub struct PlotData {
-    pub varying: Varying,
-    pub points: Vec<SweepPoint>,
-    /// The equation of state along the axis (empty for mixtures), in pieces that leave out the
-    /// two-phase region.
-    pub eos_curve: Vec<Vec<(f64, f64)>>,
-    pub single_species: bool,
 }
 
 /// The plot of a sweep that varies density alone or temperature alone.

@@ -1,7 +1,6 @@
 //! `sweep.svg`: a sweep's pressure against the one axis it varies (density along an isotherm,
 //! or temperature along an isochore), with the published equation of state as a curve.
 
-use super::sweep_collect::PlotData;
 use crate::physics::lj_eos::{Eos, Region};
 use plotters::prelude::*;
 use std::path::Path;
@@ -14,6 +13,17 @@ pub struct SweepPoint {
     pub pressure: (f64, f64),
     /// The run's full-potential estimate, when it has one.
     pub full_pressure: Option<(f64, f64)>,
+}
+
+/// What a sweep's plot shows: pressure against the one axis that varies.
+#[derive(Clone, Debug, PartialEq)]
+pub struct PlotData {
+    pub varying: Varying,
+    pub points: Vec<SweepPoint>,
+    /// The equation of state along the axis (empty for mixtures), in pieces that leave out the
+    /// two-phase region.
+    pub eos_curve: Vec<Vec<(f64, f64)>>,
+    pub single_species: bool,
 }
 
 /// Which axis varies, and the fixed other coordinate of the equation of state.

@@ -1,5 +1,6 @@
 //! Pure numerics of the model, in reduced units. Knows nothing of threads, files or windows.
 
+pub mod constants;
 pub mod forces;
 pub mod geometry;
 pub mod health;

@@ -1,6 +1,6 @@
 //! The noble-gas species and their Lennard-Jones parameters, and species of the user's own.
 
-use super::units::{AVOGADRO, BOLTZMANN};
+use super::constants::{AVOGADRO, BOLTZMANN};
 use serde::{Deserialize, Deserializer, Serialize, Serializer};
 
 /// A kind of atom a setup can contain.

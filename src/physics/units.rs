@@ -1,18 +1,11 @@
-//! Physical constants and the conversion between reduced and real units.
+//! The conversion between reduced and real units (the constants are in [`super::constants`]).
 //!
 //! Inside `physics/` every quantity is reduced with the first species of the setup as the
 //! reference: σ_ref = ε_ref = m_ref = 1. [`UnitSystem`] converts at the edges.
 
 use super::species::{Species, SpeciesParams};
 
-/// Boltzmann constant in J/K (SI 2019, exact).
-pub const BOLTZMANN: f64 = 1.380_649e-23;
-/// Avogadro constant in 1/mol (SI 2019, exact).
-pub const AVOGADRO: f64 = 6.022_140_76e23;
-/// Molar gas constant R = k_B N_A in J/(mol K) (exact from the two above).
-pub const GAS_CONSTANT: f64 = BOLTZMANN * AVOGADRO;
-/// One ångström in metres.
-pub const ANGSTROM: f64 = 1e-10;
+pub use super::constants::{ANGSTROM, AVOGADRO, BOLTZMANN, GAS_CONSTANT};
 
 /// The scales that turn reduced quantities into real ones for one reference species.
 #[derive(Clone, Copy, Debug, PartialEq)]
