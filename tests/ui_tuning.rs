@@ -4,7 +4,7 @@
 mod support;
 
 use egui_kittest::kittest::Queryable;
-use noblescope::io::setup::{Duration, Setup};
+use noblescope::io::setup::{Duration, Length, Setup};
 use support::{harness, retype, step_until};
 
 /// 256 reduced-LJ atoms: cutoff + skin 2.8 σ fits half the box (3.36 σ).
@@ -98,4 +98,24 @@ fn a_scan_from_the_panel_shows_its_results_and_feeds_the_form() {
     assert_eq!(draft.timestep, Duration::Reduced(rec));
     assert_eq!(h.state().running_setup().timestep, Duration::Reduced(0.005));
     assert!(h.query_by_label_contains("is in the setup form now").is_some());
+
+    // The cutoff half: a recommendation with its reason and the cost of each cutoff, and "Use
+    // this cutoff" puts it into the form.
+    let rc = report
+        .cutoff_choice
+        .cutoff_sigma
+        .expect("two cutoffs scanned: one is recommended");
+    let shown = noblescope::ui::unit_field::format_number(rc);
+    assert!(
+        h.query_by_label(&format!("Recommended cutoff: {shown} σ"))
+            .is_some()
+    );
+    assert!(h.query_by_label_contains("Why: ").is_some());
+    assert!(h.query_by_label("cost a step").is_some());
+    assert!(report.cutoffs.iter().all(|r| r.relative_cost > 0.0));
+    h.get_by_label("Use this cutoff").click();
+    h.step();
+    h.step();
+    let (draft, _) = h.state_mut().form_mut().draft();
+    assert_eq!(draft.cutoff, Length::Sigma(rc));
 }

@@ -117,11 +117,18 @@ pub enum Cmd {
         /// Steps to equilibrate first (default: the setup's equilibration_steps).
         #[arg(long)]
         equilibrate: Option<u64>,
-        /// Write tuning.json into this folder.
+        /// Write tuning.json, timesteps.csv and cutoffs.csv into this folder.
         #[arg(long)]
         out: Option<PathBuf>,
         #[arg(long)]
         threads: Option<usize>,
+        /// A cutoff is recommended when its full-potential energy per atom is within this of the
+        /// largest cutoff's (reduced, ε; default 0.01).
+        #[arg(long, allow_hyphen_values = true)]
+        energy_tolerance: Option<f64>,
+        /// ... and its full-potential pressure within this (reduced, ε/σ³; default 0.02).
+        #[arg(long, allow_hyphen_values = true)]
+        pressure_tolerance: Option<f64>,
     },
     /// Measure speed and memory on the standard LJ liquid.
     Bench {

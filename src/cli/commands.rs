@@ -110,9 +110,33 @@ pub fn run(cmd: Cmd) -> Result<Next, CliError> {
             equilibrate,
             out,
             threads,
+            energy_tolerance,
+            pressure_tolerance,
         } => {
             set_threads(threads)?;
-            tune(&setup, &timesteps, &cutoffs, time, equilibrate, out.as_deref())?;
+            let tol = tuning::CutoffTolerances {
+                energy: energy_tolerance.unwrap_or(tuning::CUTOFF_TOLERANCES.energy),
+                pressure: pressure_tolerance.unwrap_or(tuning::CUTOFF_TOLERANCES.pressure),
+            };
+            for (flag, v) in [
+                ("--energy-tolerance", tol.energy),
+                ("--pressure-tolerance", tol.pressure),
+            ] {
+                if !(v.is_finite() && v > 0.0 && v <= 10.0) {
+                    return Err(CliError::BadInput(format!(
+                        "{flag}: {v} is out of range; allowed: above 0 up to 10 (reduced units)"
+                    )));
+                }
+            }
+            tune(
+                &setup,
+                &timesteps,
+                &cutoffs,
+                time,
+                equilibrate,
+                out.as_deref(),
+                tol,
+            )?;
         }
         Cmd::Bench {
             atoms,
@@ -297,6 +321,7 @@ fn tune(
     time: f64,
     equilibrate: Option<u64>,
     out: Option<&Path>,
+    tol: tuning::CutoffTolerances,
 ) -> Result<(), CliError> {
     let setup = Setup::load(path).map_err(|e| CliError::BadInput(e.to_string()))?;
     let input = TuneInput::from_command_line(&setup, timesteps, cutoffs, time);
@@ -305,18 +330,31 @@ fn tune(
         Session::new(setup.clone()).map_err(|e| CliError::BadInput(format!("{}: {e}", path.display())))?;
     let warm = equilibrate.unwrap_or(setup.equilibration_steps);
     eprintln!("equilibrating {warm} steps ...");
-    let report = tuning::equilibrate_and_scan(&mut session, warm, &request)
+    let mut report = tuning::equilibrate_and_scan(&mut session, warm, &request)
         .map_err(|e| CliError::Failed(e.to_string()))?;
+    report.cutoff_choice = tuning::recommended_cutoff(&report.cutoffs, tol);
     output::tune_tables(&setup, &input, &report);
     if let Some(dir) = out {
         std::fs::create_dir_all(dir)
             .map_err(|e| CliError::BadInput(format!("--out: cannot create {}: {e}", dir.display())))?;
         let json = serde_json::json!({ "setup": path.display().to_string(), "timesteps": report.timesteps,
             "cutoffs": report.cutoffs, "fluctuation_limit": tuning::FLUCTUATION_LIMIT,
+            "recommended_timestep_tau": report.recommended,
+            "recommended_cutoff_sigma": report.cutoff_choice.cutoff_sigma,
+            "cutoff_reason": report.cutoff_choice.reason, "cutoff_tolerances": tol,
             "caution": noblescope::io::summary::MODEL_CAUTION });
-        let file = dir.join("tuning.json");
-        std::fs::write(&file, serde_json::to_string_pretty(&json).unwrap_or_default())
-            .map_err(|e| CliError::Failed(format!("{}: {e}", file.display())))?;
+        let (timesteps_csv, cutoffs_csv) = output::tune_csv(&report);
+        for (name, text) in [
+            (
+                "tuning.json",
+                serde_json::to_string_pretty(&json).unwrap_or_default(),
+            ),
+            ("timesteps.csv", timesteps_csv),
+            ("cutoffs.csv", cutoffs_csv),
+        ] {
+            let file = dir.join(name);
+            std::fs::write(&file, text).map_err(|e| CliError::Failed(format!("{}: {e}", file.display())))?;
+        }
     }
     Ok(())
 }

@@ -119,26 +119,70 @@ pub fn tune_tables(setup: &Setup, input: &TuneInput, report: &TuningReport) {
         report.potential, report.configurations
     );
     println!(
-        "{:>12} {:>12} {:>12} {:>16} {:>16}",
+        "{:>12} {:>12} {:>12} {:>16} {:>16} {:>10}",
         format!("rc [{len_unit}]"),
         "U/N (mode)",
         "P (mode)",
         "U/N full est.",
-        "P full est."
+        "P full est.",
+        "cost"
     );
     for r in &report.cutoffs {
         println!(
-            "{:>12.4} {:>12.5} {:>12.5} {:>16.5} {:>16.5}",
+            "{:>12.4} {:>12.5} {:>12.5} {:>16.5} {:>16.5} {:>9.2}x",
             r.cutoff_sigma * per_sigma,
             r.potential,
             r.pressure,
             r.potential_full_estimate,
-            r.pressure_full_estimate
+            r.pressure_full_estimate,
+            r.relative_cost
         );
     }
     println!(
-        "(full estimate: unshifted pair terms inside rc plus analytic tail corrections, g(r) = 1 beyond rc)"
+        "(full estimate: unshifted pair terms inside rc plus analytic tail corrections, g(r) = 1 beyond rc; cost: wall time of a step relative to the setup's cutoff)"
     );
+    let c = &report.cutoff_choice;
+    match c.cutoff_sigma {
+        Some(rc) => println!(
+            "recommended cutoff: {:.4} {len_unit}: {}",
+            rc * per_sigma,
+            c.reason
+        ),
+        None => println!("no cutoff recommended: {}", c.reason),
+    }
+}
+
+/// The scan's rows as CSV: `(timesteps.csv, cutoffs.csv)`, reduced units, with a header line.
+pub fn tune_csv(report: &TuningReport) -> (String, String) {
+    let mut t = String::from(
+        "# timestep scan (reduced units): constant-energy trials from one equilibrated state\ntimestep_tau,steps,drift_per_atom_per_tau,relative_drift,fluctuation_ratio,blew_up\n",
+    );
+    for r in &report.timesteps {
+        t += &format!(
+            "{},{},{},{},{},{}\n",
+            r.timestep_tau,
+            r.steps,
+            r.drift_per_atom_per_tau,
+            r.relative_drift,
+            r.fluctuation_ratio,
+            r.blew_up
+        );
+    }
+    let mut c = String::from(
+        "# cutoff scan (reduced units): averages over configurations; full estimates add the shift back and the tail corrections; cost relative to the setup's cutoff\ncutoff_sigma,potential,pressure,potential_full_estimate,pressure_full_estimate,relative_cost\n",
+    );
+    for r in &report.cutoffs {
+        c += &format!(
+            "{},{},{},{},{},{}\n",
+            r.cutoff_sigma,
+            r.potential,
+            r.pressure,
+            r.potential_full_estimate,
+            r.pressure_full_estimate,
+            r.relative_cost
+        );
+    }
+    (t, c)
 }
 
 /// The bench table's title and column heads.

@@ -437,6 +437,7 @@ mod tests {
             timesteps: Vec::new(),
             cutoffs: Vec::new(),
             recommended: Some(0.004),
+            cutoff_choice: Default::default(),
         };
         assert_eq!(
             tuned_message(&report),
@@ -444,6 +445,7 @@ mod tests {
         );
         let none = TuningReport {
             recommended: None,
+            cutoff_choice: Default::default(),
             ..report
         };
         assert!(tuned_message(&none).contains("no timestep tried was steady enough"));

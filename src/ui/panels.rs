@@ -295,6 +295,12 @@ impl NoblescopeApp {
                 self.form_open = true;
                 self.run.status.info("Recommended timestep put into the setup form: press Change live or Apply and restart to use it.");
             }
+            TuningAction::UseCutoff(rc) => {
+                let running = self.run.running.clone();
+                self.run.form.cutoff.show_value(&running, rc);
+                self.form_open = true;
+                self.run.status.info("Recommended cutoff put into the setup form: press Change live or Apply and restart to use it.");
+            }
         }
     }
 }

@@ -41,6 +41,8 @@ pub enum TuningAction {
     Start(Command),
     /// Put this timestep into the setup form.
     UseTimestep(Duration),
+    /// Put this cutoff into the setup form.
+    UseCutoff(Length),
     /// Send `Command::CancelTune`.
     Cancel,
 }
@@ -458,7 +460,9 @@ impl TuningPanel {
             action = Some(a);
         }
         ui.separator();
-        self.show_cutoffs(ui, &report, shown);
+        if let Some(a) = self.show_cutoffs(ui, &report, shown) {
+            action = Some(a);
+        }
         action
     }
 
@@ -677,12 +681,47 @@ impl TuningPanel {
         action
     }
 
-    fn show_cutoffs(&self, ui: &mut egui::Ui, report: &TuningReport, shown: Shown) {
+    fn show_cutoffs(
+        &mut self,
+        ui: &mut egui::Ui,
+        report: &TuningReport,
+        shown: Shown,
+    ) -> Option<TuningAction> {
+        let mut action = None;
         let (lf, lu) = shown.length(self.cutoff_unit);
         let (ef, eu) = shown.energy();
         let (pf, pu) = shown.pressure();
         ui.heading("Cutoff scan");
         ui.weak(format!("{:?}, averaged over {} configurations {} steps apart; full estimate: unshifted pair terms inside the cutoff plus analytic tail corrections", report.potential, report.configurations, TUNE_STEPS_APART));
+        let choice = &report.cutoff_choice;
+        match choice.cutoff_sigma {
+            Some(rc) => {
+                ui.horizontal(|ui| {
+                    ui.label(
+                        egui::RichText::new(format!("Recommended cutoff: {} {lu}", format_number(rc * lf)))
+                            .strong()
+                            .color(palette::TARGET),
+                    );
+                    let hint = "puts it into the setup form's Cutoff field; press Change live or Apply and restart there to use it";
+                    if ui.button("Use this cutoff").on_hover_text(hint).clicked() {
+                        let l = shown.typed_length(self.cutoff_unit, rc * lf);
+                        self.used = Some(format!(
+                            "{} {lu} is in the setup form now: press Change live (or Apply and restart) there to use it.",
+                            format_number(rc * lf)
+                        ));
+                        action = Some(TuningAction::UseCutoff(l));
+                    }
+                });
+                ui.weak(format!("Why: {}.", choice.reason));
+            }
+            None if !choice.reason.is_empty() => {
+                ui.colored_label(
+                    palette::CAUTION_TEXT,
+                    format!("No cutoff recommended: {}.", choice.reason),
+                );
+            }
+            None => {}
+        }
         let series = |f: &dyn Fn(&crate::engine::tuning::CutoffRow) -> f64| -> Vec<[f64; 2]> {
             report
                 .cutoffs
@@ -723,7 +762,7 @@ impl TuningPanel {
         });
         egui::Grid::new("tune-cutoff-table")
             .striped(true)
-            .num_columns(5)
+            .num_columns(6)
             .spacing([12.0, 3.0])
             .show(ui, |ui| {
                 for h in [
@@ -732,6 +771,7 @@ impl TuningPanel {
                     format!("U/N full est. [{eu}]"),
                     format!("P as run [{pu}]"),
                     format!("P full est. [{pu}]"),
+                    "cost a step".to_string(),
                 ] {
                     ui.label(egui::RichText::new(h).strong());
                 }
@@ -742,9 +782,12 @@ impl TuningPanel {
                     ui.label(format!("{:.4}", r.potential_full_estimate * ef));
                     ui.label(format!("{:.4}", r.pressure * pf));
                     ui.label(format!("{:.4}", r.pressure_full_estimate * pf));
+                    ui.label(format!("{:.2}×", r.relative_cost))
+                        .on_hover_text("wall time of a step at this cutoff over one at the setup's cutoff");
                     ui.end_row();
                 }
             });
+        action
     }
 }
 
@@ -849,6 +892,7 @@ mod tests {
             timesteps: Vec::new(),
             cutoffs: Vec::new(),
             recommended: None,
+            cutoff_choice: Default::default(),
         }
     }
 

@@ -10,6 +10,7 @@ pub use request::{
     TUNE_MAX_STEPS, TUNE_MAX_VALUES, TuneError, TuneInput, TuneRequest, TuneUnits,
 };
 pub use scan::{
-    CutoffRow, FLUCTUATION_LIMIT, TUNE_CONFIGURATIONS, TUNE_STEPS_APART, TimestepRow, TuningReport,
-    cutoff_scan, equilibrate_and_scan, full_scan, recommended_timestep, timestep_scan,
+    COST_STEPS, CUTOFF_TOLERANCES, CutoffChoice, CutoffRow, CutoffTolerances, FLUCTUATION_LIMIT,
+    TUNE_CONFIGURATIONS, TUNE_STEPS_APART, TimestepRow, TuningReport, cutoff_scan, equilibrate_and_scan,
+    full_scan, recommended_cutoff, recommended_timestep, timestep_scan,
 };

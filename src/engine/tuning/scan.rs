@@ -37,6 +37,96 @@ pub struct CutoffRow {
     /// inside r_c plus the analytic tail corrections.
     pub potential_full_estimate: f64,
     pub pressure_full_estimate: f64,
+    /// Wall time of a step at this cutoff over that at the setup's cutoff (measured on a copy,
+    /// [`COST_STEPS`] steps each; 1 = as costly as now).
+    pub relative_cost: f64,
+}
+
+/// How close a cutoff's full-potential estimates must come to those of the largest cutoff
+/// scanned to be recommended, in reduced units.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize)]
+pub struct CutoffTolerances {
+    /// Potential energy per atom, ε.
+    pub energy: f64,
+    /// Pressure, ε/σ³.
+    pub pressure: f64,
+}
+
+/// Default tolerances: 0.01 ε per atom (about 0.2 % of a dense liquid's potential energy, and
+/// several times the standard error of a short production run) and 0.02 ε/σ³ (about the
+/// standard error of the pressure of such a run, 1 % of the liquid's pressure near the triple
+/// point): tighter than the run can resolve buys nothing (common practice, no source).
+pub const CUTOFF_TOLERANCES: CutoffTolerances = CutoffTolerances {
+    energy: 0.01,
+    pressure: 0.02,
+};
+
+/// Steps timed at each cutoff for its relative cost.
+pub const COST_STEPS: u64 = 10;
+
+/// The recommended cutoff and why, or why none is.
+#[derive(Clone, Debug, Default, PartialEq, Serialize)]
+pub struct CutoffChoice {
+    /// σ; `None` when no cutoff smaller than the largest qualifies or too few were scanned.
+    pub cutoff_sigma: Option<f64>,
+    pub reason: String,
+}
+
+/// The smallest cutoff whose full-potential energy and pressure agree with the largest scanned
+/// cutoff's within `tol` (the largest is the best estimate of the full potential scanned).
+pub fn recommended_cutoff(rows: &[CutoffRow], tol: CutoffTolerances) -> CutoffChoice {
+    let Some(largest) = rows
+        .iter()
+        .max_by(|a, b| a.cutoff_sigma.total_cmp(&b.cutoff_sigma))
+    else {
+        return CutoffChoice {
+            cutoff_sigma: None,
+            reason: "no cutoff was scanned".into(),
+        };
+    };
+    if rows.len() < 2 {
+        return CutoffChoice {
+            cutoff_sigma: None,
+            reason: "scan at least two cutoffs: the largest is the reference the others are judged against"
+                .into(),
+        };
+    }
+    let mut sorted: Vec<&CutoffRow> = rows.iter().collect();
+    sorted.sort_by(|a, b| a.cutoff_sigma.total_cmp(&b.cutoff_sigma));
+    let ok = |r: &CutoffRow| {
+        (r.potential_full_estimate - largest.potential_full_estimate).abs() <= tol.energy
+            && (r.pressure_full_estimate - largest.pressure_full_estimate).abs() <= tol.pressure
+    };
+    let pick = sorted.iter().find(|r| ok(r)).copied().unwrap_or(largest);
+    let du = (pick.potential_full_estimate - largest.potential_full_estimate).abs();
+    let dp = (pick.pressure_full_estimate - largest.pressure_full_estimate).abs();
+    let reason = if pick.cutoff_sigma == largest.cutoff_sigma {
+        format!(
+            "no smaller cutoff comes within {} ε of energy and {} ε/σ³ of pressure of the largest ({} σ); take the largest or scan larger ones",
+            tol.energy, tol.pressure, largest.cutoff_sigma
+        )
+    } else {
+        format!(
+            "the smallest cutoff whose full-potential energy and pressure are within {} ε and {} ε/σ³ of those at {} σ (off by {:.4} ε and {:.4} ε/σ³), at {:.2}× the present cost a step",
+            tol.energy, tol.pressure, largest.cutoff_sigma, du, dp, pick.relative_cost
+        )
+    };
+    CutoffChoice {
+        cutoff_sigma: Some(pick.cutoff_sigma),
+        reason,
+    }
+}
+
+/// Wall time of [`COST_STEPS`] steps of a copy of `state` at cutoff `rc`.
+fn step_cost(spec: &SimulationSpec, state: &SimulationState, rc: f64) -> f64 {
+    let mut s = spec.clone();
+    s.cutoff = rc;
+    let Ok(mut sim) = Simulation::from_state(s, state.clone()) else {
+        return f64::NAN;
+    };
+    let t = std::time::Instant::now();
+    let _ = sim.run(COST_STEPS);
+    t.elapsed().as_secs_f64()
 }
 
 /// What a tuning scan found, all in reduced units of `reference`.
@@ -58,6 +148,8 @@ pub struct TuningReport {
     pub cutoffs: Vec<CutoffRow>,
     /// Largest timestep that did not blow up and kept the fluctuation ratio under the limit (τ).
     pub recommended: Option<f64>,
+    /// The recommended cutoff with [`CUTOFF_TOLERANCES`], and why.
+    pub cutoff_choice: CutoffChoice,
 }
 
 /// Configurations the cutoff scan averages over.
@@ -176,7 +268,9 @@ pub fn cutoff_scan(
         }
         if ok && !states.is_empty() {
             let n = states.len() as f64;
+            let cost = step_cost(spec, &states[0], rc) / step_cost(spec, &states[0], spec.cutoff);
             rows.push(CutoffRow {
+                relative_cost: cost,
                 cutoff_sigma: rc,
                 potential: acc[0] / n,
                 potential_full_estimate: acc[1] / n,
@@ -241,6 +335,7 @@ pub fn full_scan(
         duration_tau: duration,
         configurations: states.len(),
         recommended: recommended_timestep(&rows),
+        cutoff_choice: recommended_cutoff(&crows, CUTOFF_TOLERANCES),
         timesteps: rows,
         cutoffs: crows,
     })
@@ -311,5 +406,36 @@ mod tests {
             row(0.02, f64::NAN, true),
         ];
         assert_eq!(recommended_timestep(&rows), Some(0.005));
+    }
+
+    #[test]
+    fn the_recommended_cutoff_is_the_smallest_within_tolerance_of_the_largest() {
+        let row = |rc: f64, u: f64, p: f64| CutoffRow {
+            cutoff_sigma: rc,
+            potential: u,
+            pressure: p,
+            potential_full_estimate: u,
+            pressure_full_estimate: p,
+            relative_cost: rc / 2.5,
+        };
+        let rows = vec![
+            row(4.0, -6.10, 0.50),
+            row(2.5, -6.05, 0.58),
+            row(3.0, -6.095, 0.51),
+        ];
+        let c = recommended_cutoff(&rows, CUTOFF_TOLERANCES);
+        assert_eq!(c.cutoff_sigma, Some(3.0), "{}", c.reason);
+        assert!(c.reason.contains("4 σ"), "{}", c.reason);
+        let strict = CutoffTolerances {
+            energy: 1e-4,
+            pressure: 1e-4,
+        };
+        let c = recommended_cutoff(&rows, strict);
+        assert_eq!(c.cutoff_sigma, Some(4.0));
+        assert!(c.reason.starts_with("no smaller cutoff"), "{}", c.reason);
+        assert_eq!(
+            recommended_cutoff(&rows[..1], CUTOFF_TOLERANCES).cutoff_sigma,
+            None
+        );
     }
 }
