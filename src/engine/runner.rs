@@ -588,6 +588,7 @@ impl Engine {
             }
             Command::SetAverageStart(choice) => {
                 self.average_start = choice;
+                session.set_precision_start(choice);
                 self.evidence_due = true;
                 Ok(())
             }

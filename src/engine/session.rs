@@ -24,6 +24,8 @@ pub struct Session {
     targets: Vec<PrecisionTarget>,
     /// Whether the state the session started from (or was restored to) has been checked.
     start_checked: bool,
+    /// Where the precision targets are judged from: the detected start, or one the user set.
+    precision_start: StartChoice,
 }
 
 /// What one step produced.
@@ -66,6 +68,7 @@ impl Session {
             samples,
             targets,
             start_checked: false,
+            precision_start: StartChoice::Automatic,
         })
     }
 
@@ -89,6 +92,7 @@ impl Session {
             samples,
             targets,
             start_checked: false,
+            precision_start: StartChoice::Automatic,
         })
     }
 
@@ -155,6 +159,12 @@ impl Session {
     /// Forgets the samples after `step` (after a rewind to it).
     pub fn forget_samples_after(&mut self, step: u64) {
         self.samples.truncate_after(step);
+    }
+
+    /// Judges the precision targets from `start` (the window's start set by hand; headless runs
+    /// keep the detected start).
+    pub fn set_precision_start(&mut self, start: StartChoice) {
+        self.precision_start = start;
     }
 
     /// The precision targets in force, reduced units.
@@ -235,7 +245,7 @@ impl Session {
                 && !self.targets.is_empty()
                 && precision::is_check_point(self.samples.raw_samples())
             {
-                let evidence = self.evidence(StartChoice::Automatic);
+                let evidence = self.evidence(self.precision_start);
                 let progress = precision::progress(&evidence, &self.targets);
                 if precision::all_met(&evidence, &progress) {
                     out.precision_met = Some(progress);
