@@ -82,43 +82,26 @@ pub fn statistical_inefficiency_with(x: &[f64], schedule: LagSchedule) -> Option
 }
 
 /// Picks the start t₀ that maximises the effective number of samples (N − t₀ + 1) / g(t₀),
-/// trying every `stride`-th sample (the fast lag schedule for g).
+/// trying every `stride`-th sample (the fast lag schedule for g): pymbar's
+/// `timeseries.detect_equilibration(x, fast=True, nskip=stride)`.
 ///
 /// Method: Chodera, J. Chem. Theory Comput. 12, 1799 (2016); the count N − t₀ + 1 and the
-/// tie rule (earliest start wins) are those of `pymbar.timeseries.detect_equilibration`.
+/// tie rule (earliest start wins) are those of pymbar. The program's own detection,
+/// [`super::series_statistics::detect_start`], does the work, unblocked, so the pymbar check
+/// covers the code the program runs.
 pub fn detect_equilibration(x: &[f64], stride: usize) -> Equilibration {
-    let n = x.len();
-    let stride = stride.max(1);
-    let mut best = Equilibration {
-        start: 0,
-        inefficiency: 1.0,
-        effective_samples: 1.0,
-    };
-    if n < 2 {
+    if x.len() < 2 {
         return Equilibration {
             start: 0,
             inefficiency: 1.0,
-            effective_samples: n as f64,
+            effective_samples: x.len() as f64,
         };
     }
-    // A constant series: pymbar's special case (start 0, g = 1, one effective sample).
-    if x.iter().all(|&v| v == x[0]) {
-        return best;
+    let sums = super::suffix::RunningSums::new(x);
+    let d = super::series_statistics::detect_start(x, &sums, 0, stride, usize::MAX);
+    Equilibration {
+        start: d.index,
+        inefficiency: d.inefficiency,
+        effective_samples: d.effective_samples,
     }
-    let mut t0 = 0;
-    let mut first = true;
-    while t0 < n - 1 {
-        let g = statistical_inefficiency(&x[t0..], true).unwrap_or((n - t0 + 1) as f64);
-        let neff = (n - t0 + 1) as f64 / g;
-        if first || neff > best.effective_samples {
-            best = Equilibration {
-                start: t0,
-                inefficiency: g,
-                effective_samples: neff,
-            };
-            first = false;
-        }
-        t0 += stride;
-    }
-    best
 }

@@ -12,7 +12,6 @@
 use super::quantity::{QUANTITIES, Quantity};
 use super::suffix::{KeptSums, RunningSums};
 use crate::physics::Observables;
-use serde::{Deserialize, Serialize};
 
 /// Entries kept per quantity by default: 2²⁰, so at most 72 MiB for the seven series with
 /// their steps and times, and one refresh of the statistics stays under 50 ms (see
@@ -20,7 +19,7 @@ use serde::{Deserialize, Serialize};
 pub const DEFAULT_CAPACITY: usize = 1 << 20;
 
 /// Raw samples still being averaged into the next entry.
-#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, Default, PartialEq)]
 struct Pending {
     step: u64,
     time: f64,

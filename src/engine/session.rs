@@ -156,11 +156,6 @@ impl Session {
         &self.samples
     }
 
-    /// Forgets the samples after `step` (after a rewind to it).
-    pub fn forget_samples_after(&mut self, step: u64) {
-        self.samples.truncate_after(step);
-    }
-
     /// Judges the precision targets from `start` (the window's start set by hand; headless runs
     /// keep the detected start).
     pub fn set_precision_start(&mut self, start: StartChoice) {
